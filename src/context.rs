@@ -1,0 +1,1 @@
+//! Assertion context (ConText, after NegEx).

@@ -1,0 +1,1 @@
+//! The pest grammars.

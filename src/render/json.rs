@@ -1,0 +1,82 @@
+//! JSON output of `extract` (`tidemark-extract/1`).
+//!
+//! One object per run: `{"schema": "tidemark-extract/1", "documents": [...]}`; each document
+//! has `source`, `measurements`, `findings`, `warnings` and the rest of the model and picture.
+//! Spans are half-open byte offsets with 1-based line/column (Unicode scalar values). The
+//! schema is documented in `docs/schema/tidemark-extract-1.schema.json`.
+
+use std::io::{self, Write};
+
+use serde_json::{json, Value};
+
+use crate::cli::inputs::Doc;
+use crate::Analysis;
+
+pub const EXTRACT_SCHEMA: &str = "tidemark-extract/1";
+
+/// The JSON value of one document's extraction.
+pub fn extract_document(doc: &Doc, analysis: Option<&Analysis>) -> Value {
+    let mut v = json!({
+        "source": doc.source,
+        "warnings": doc.warnings,
+    });
+    let obj = v.as_object_mut().expect("json! object");
+    match analysis {
+        Some(a) => {
+            let ex = &a.extraction;
+            obj.insert("note_date".into(), json!(ex.note_date));
+            obj.insert("measurements".into(), json!(ex.measurements));
+            obj.insert("findings".into(), json!(ex.findings));
+            obj.insert("statements".into(), json!(ex.statements));
+            obj.insert("medications".into(), json!(ex.medications));
+            obj.insert("sections".into(), json!(ex.sections));
+            obj.insert("episodes".into(), json!(ex.episodes));
+            let p = &a.picture;
+            obj.insert("profile".into(), json!(p.profile));
+            obj.insert("classifications".into(), json!(p.classifications));
+            obj.insert("patient".into(), json!(p.patient));
+            obj.insert("derived".into(), json!(p.derived));
+            obj.insert("trends".into(), json!(p.trends));
+        }
+        None => {
+            for key in [
+                "measurements",
+                "findings",
+                "statements",
+                "medications",
+                "sections",
+            ] {
+                obj.insert(key.into(), json!([]));
+            }
+        }
+    }
+    v
+}
+
+/// Write the whole run as one pretty-printed object.
+pub fn write_extract_run<W: Write>(
+    out: &mut W,
+    docs: &[(Doc, Option<Analysis>)],
+) -> io::Result<()> {
+    let documents: Vec<Value> = docs
+        .iter()
+        .map(|(d, a)| extract_document(d, a.as_ref()))
+        .collect();
+    let run = json!({"schema": EXTRACT_SCHEMA, "documents": documents});
+    serde_json::to_writer_pretty(&mut *out, &run)?;
+    out.write_all(b"\n")
+}
+
+/// Write one document as one line.
+pub fn write_extract_line<W: Write>(
+    out: &mut W,
+    doc: &Doc,
+    a: Option<&Analysis>,
+) -> io::Result<()> {
+    let mut v = extract_document(doc, a);
+    v.as_object_mut()
+        .expect("object")
+        .insert("schema".into(), json!(EXTRACT_SCHEMA));
+    serde_json::to_writer(&mut *out, &v)?;
+    out.write_all(b"\n")
+}

@@ -1,0 +1,9 @@
+//! Renderers: they turn analyses into output and know nothing of parsing.
+
+pub mod json;
+pub mod summary;
+
+/// The caution every human-facing output carries.
+pub const CAUTION: &str = "tidemark supports documentation; it is not a diagnostic device. \
+Every item is read from the note text and may be wrong: verify against the record. Local \
+policy, coding rules and licensed clinicians prevail.";

@@ -1,0 +1,189 @@
+//! Byte spans and their line/column positions.
+//!
+//! Every extracted item carries a [`Span`]: 0-based byte offsets (`start`, `end`, end
+//! exclusive) plus 1-based `line`/`column` and `end_line`/`end_column`, columns counted in
+//! Unicode scalar values. Lines end at `\n`; a `\r` before it belongs to the line it ends, so
+//! CRLF text gets the same line numbers as LF text. UTF-16 columns, which editors count, are
+//! computed on demand by [`LineIndex::utf16_column`].
+
+use serde::Serialize;
+
+/// A located piece of a document.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize, Default)]
+pub struct Span {
+    pub start: usize,
+    pub end: usize,
+    pub line: u32,
+    pub column: u32,
+    pub end_line: u32,
+    pub end_column: u32,
+}
+
+impl Span {
+    /// The byte range, for slicing the source.
+    pub fn range(&self) -> std::ops::Range<usize> {
+        self.start..self.end
+    }
+
+    pub fn len(&self) -> usize {
+        self.end - self.start
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.end == self.start
+    }
+}
+
+/// Line starts of one text, for turning byte offsets into positions.
+#[derive(Debug, Clone)]
+pub struct LineIndex<'a> {
+    text: &'a str,
+    line_starts: Vec<usize>,
+}
+
+impl<'a> LineIndex<'a> {
+    pub fn new(text: &'a str) -> Self {
+        let mut line_starts = Vec::with_capacity(text.len() / 40 + 1);
+        line_starts.push(0);
+        line_starts.extend(memchr_iter(b'\n', text.as_bytes()).map(|i| i + 1));
+        LineIndex { text, line_starts }
+    }
+
+    pub fn text(&self) -> &'a str {
+        self.text
+    }
+
+    /// Number of lines (a text ending in a newline has an empty last line).
+    pub fn line_count(&self) -> usize {
+        self.line_starts.len()
+    }
+
+    /// Byte offset where the 0-based line `line` starts.
+    pub fn line_start(&self, line: usize) -> usize {
+        self.line_starts
+            .get(line)
+            .copied()
+            .unwrap_or(self.text.len())
+    }
+
+    /// Byte range of the 0-based line `line`, without its `\n` or `\r\n`.
+    pub fn line_range(&self, line: usize) -> std::ops::Range<usize> {
+        let start = self.line_start(line);
+        let mut end = self
+            .line_starts
+            .get(line + 1)
+            .map(|s| s - 1)
+            .unwrap_or(self.text.len());
+        if end > start && self.text.as_bytes()[end - 1] == b'\r' {
+            end -= 1;
+        }
+        start..end
+    }
+
+    /// 0-based line holding byte `offset`.
+    pub fn line_of(&self, offset: usize) -> usize {
+        match self.line_starts.binary_search(&offset) {
+            Ok(i) => i,
+            Err(i) => i - 1,
+        }
+    }
+
+    /// Snap an offset down to a char boundary, so a position never splits a character.
+    fn floor(&self, mut offset: usize) -> usize {
+        offset = offset.min(self.text.len());
+        while !self.text.is_char_boundary(offset) {
+            offset -= 1;
+        }
+        offset
+    }
+
+    /// 1-based (line, column in scalar values) of a byte offset.
+    pub fn position(&self, offset: usize) -> (u32, u32) {
+        let offset = self.floor(offset);
+        let line = self.line_of(offset);
+        let start = self.line_starts[line];
+        let col = self.text[start..offset].chars().count();
+        (line as u32 + 1, col as u32 + 1)
+    }
+
+    /// 0-based UTF-16 code-unit column of a byte offset within its line (the LSP position).
+    pub fn utf16_column(&self, offset: usize) -> u32 {
+        let offset = self.floor(offset);
+        let line = self.line_of(offset);
+        let start = self.line_starts[line];
+        self.text[start..offset]
+            .chars()
+            .map(|c| c.len_utf16() as u32)
+            .sum()
+    }
+
+    /// Byte offset of a 0-based line and UTF-16 column, clamped to the line.
+    pub fn offset_of_utf16(&self, line: u32, utf16_col: u32) -> usize {
+        let range = self.line_range(line as usize);
+        let mut units = 0u32;
+        for (i, c) in self.text[range.clone()].char_indices() {
+            if units >= utf16_col {
+                return range.start + i;
+            }
+            units += c.len_utf16() as u32;
+        }
+        range.end
+    }
+
+    /// A full [`Span`] for the byte range `start..end`.
+    pub fn span(&self, start: usize, end: usize) -> Span {
+        let (line, column) = self.position(start);
+        let (end_line, end_column) = self.position(end);
+        Span {
+            start: self.floor(start),
+            end: self.floor(end),
+            line,
+            column,
+            end_line,
+            end_column,
+        }
+    }
+}
+
+fn memchr_iter(needle: u8, haystack: &[u8]) -> impl Iterator<Item = usize> + '_ {
+    haystack
+        .iter()
+        .enumerate()
+        .filter_map(move |(i, &b)| (b == needle).then_some(i))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn positions_count_scalar_values_and_ignore_cr() {
+        let text = "ab\r\nµmol/L 3\n°C";
+        let idx = LineIndex::new(text);
+        assert_eq!(idx.position(0), (1, 1));
+        assert_eq!(idx.position(4), (2, 1));
+        // "µ" is two bytes but one column.
+        let three = text.find('3').unwrap();
+        assert_eq!(idx.position(three), (2, 9));
+        assert_eq!(idx.line_range(0), 0..2);
+        let deg = text.find('°').unwrap();
+        assert_eq!(idx.position(deg + 2), (3, 2));
+    }
+
+    #[test]
+    fn utf16_columns_count_surrogate_pairs() {
+        let text = "x 😀 JVP";
+        let idx = LineIndex::new(text);
+        let j = text.find('J').unwrap();
+        assert_eq!(idx.utf16_column(j), 5);
+        assert_eq!(idx.offset_of_utf16(0, 5), j);
+    }
+
+    #[test]
+    fn span_end_column_is_exclusive_position() {
+        let text = "  Wt 181 lb";
+        let idx = LineIndex::new(text);
+        let s = idx.span(2, 11);
+        assert_eq!((s.line, s.column, s.end_line, s.end_column), (1, 3, 1, 12));
+    }
+}

@@ -1,0 +1,1 @@
+//! Dates and times as notes write them.

@@ -1,0 +1,1 @@
+//! Sentence and clause boundaries.

@@ -1,0 +1,1 @@
+//! UCUM units and conversions.
