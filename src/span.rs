@@ -164,7 +164,8 @@ mod tests {
         assert_eq!(idx.position(4), (2, 1));
         // "µ" is two bytes but one column.
         let three = text.find('3').unwrap();
-        assert_eq!(idx.position(three), (2, 9));
+        // "µmol/L " is seven scalar values, so "3" is column 8.
+        assert_eq!(idx.position(three), (2, 8));
         assert_eq!(idx.line_range(0), 0..2);
         let deg = text.find('°').unwrap();
         assert_eq!(idx.position(deg + 2), (3, 2));

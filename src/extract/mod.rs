@@ -1,5 +1,7 @@
 //! Extraction: from text to the model.
 
+pub mod lexicon;
+
 use crate::config::ExtractOptions;
 use crate::model::Extraction;
 

@@ -1,1 +1,266 @@
-//! Section headers.
+//! Section headers in their usual spellings, with or without colons.
+//!
+//! A header is recognised at the start of a line (after indentation or a bullet): either a
+//! known title followed by `:` or ` - ` (content may follow on the same line), or a known
+//! title alone on its line. The section runs to the next header.
+
+use crate::model::{Section, SectionKind};
+use crate::span::LineIndex;
+
+/// Known titles, lower case, spaces collapsed.
+const TITLES: &[(&str, SectionKind)] = {
+    use SectionKind::*;
+    &[
+        ("diagnosis", Diagnosis),
+        ("diagnoses", Diagnosis),
+        ("dx", Diagnosis),
+        ("primary diagnosis", Diagnosis),
+        ("principal diagnosis", Diagnosis),
+        ("discharge diagnosis", Diagnosis),
+        ("discharge diagnoses", Diagnosis),
+        ("working diagnosis", Diagnosis),
+        ("admission diagnosis", Diagnosis),
+        ("problem list", Diagnosis),
+        ("problems", Diagnosis),
+        ("active problems", Diagnosis),
+        ("pc", PresentingComplaint),
+        ("presenting complaint", PresentingComplaint),
+        ("chief complaint", PresentingComplaint),
+        ("cc", PresentingComplaint),
+        ("reason for admission", PresentingComplaint),
+        ("reason for referral", PresentingComplaint),
+        ("reason for review", PresentingComplaint),
+        ("hpc", History),
+        ("hpi", History),
+        ("hopc", History),
+        ("history", History),
+        ("history of presenting complaint", History),
+        ("history of present illness", History),
+        ("history of presenting illness", History),
+        ("interval history", History),
+        ("clinical history", History),
+        ("subjective", Subjective),
+        ("s", Subjective),
+        ("pmh", PastHistory),
+        ("pmhx", PastHistory),
+        ("past medical history", PastHistory),
+        ("past history", PastHistory),
+        ("medical history", PastHistory),
+        ("background", PastHistory),
+        ("previous medical history", PastHistory),
+        ("past medical and surgical history", PastHistory),
+        ("psh", PastHistory),
+        ("fh", FamilyHistory),
+        ("fhx", FamilyHistory),
+        ("family history", FamilyHistory),
+        ("sh", SocialHistory),
+        ("shx", SocialHistory),
+        ("social history", SocialHistory),
+        ("social", SocialHistory),
+        ("medications", Medications),
+        ("medication", Medications),
+        ("meds", Medications),
+        ("current medications", Medications),
+        ("current meds", Medications),
+        ("regular medications", Medications),
+        ("medications on admission", Medications),
+        ("admission medications", Medications),
+        ("drug history", Medications),
+        ("dh", Medications),
+        ("allergies", Allergies),
+        ("allergy", Allergies),
+        ("examination", Examination),
+        ("exam", Examination),
+        ("o/e", Examination),
+        ("oe", Examination),
+        ("on examination", Examination),
+        ("physical examination", Examination),
+        ("physical exam", Examination),
+        ("pe", Examination),
+        ("clinical examination", Examination),
+        ("examination on discharge", Examination),
+        ("discharge examination", Examination),
+        ("exam at discharge", Examination),
+        ("objective", Objective),
+        ("o", Objective),
+        ("obs", Observations),
+        ("observations", Observations),
+        ("vitals", Observations),
+        ("vital signs", Observations),
+        ("nursing observations", Observations),
+        ("bloods", Labs),
+        ("blood results", Labs),
+        ("bloods today", Labs),
+        ("labs", Labs),
+        ("laboratory", Labs),
+        ("laboratory results", Labs),
+        ("lab results", Labs),
+        ("results", Labs),
+        ("investigations", Labs),
+        ("key investigations", Labs),
+        ("imaging", Imaging),
+        ("echo", Imaging),
+        ("echocardiogram", Imaging),
+        ("echocardiography", Imaging),
+        ("tte", Imaging),
+        ("cxr", Imaging),
+        ("chest x-ray", Imaging),
+        ("chest xray", Imaging),
+        ("ecg", Imaging),
+        ("assessment", Assessment),
+        ("impression", Assessment),
+        ("imp", Assessment),
+        ("a", Assessment),
+        ("a/p", Assessment),
+        ("assessment and plan", Assessment),
+        ("assessment & plan", Assessment),
+        ("summary", Assessment),
+        ("clinical summary", Assessment),
+        ("hospital course", Assessment),
+        ("course", Assessment),
+        ("progress", Assessment),
+        ("plan", Plan),
+        ("p", Plan),
+        ("management", Plan),
+        ("management plan", Plan),
+        ("to do", Plan),
+        ("todo", Plan),
+        ("jobs", Plan),
+        ("actions", Plan),
+        ("recommendations", Plan),
+        ("discharge medications", DischargeMedications),
+        ("discharge meds", DischargeMedications),
+        ("medications on discharge", DischargeMedications),
+        ("medication on discharge", DischargeMedications),
+        ("tto", DischargeMedications),
+        ("tta", DischargeMedications),
+        ("discharge instructions", DischargeInstructions),
+        ("discharge advice", DischargeInstructions),
+        ("advice", DischargeInstructions),
+        ("advice given", DischargeInstructions),
+        ("patient advice", DischargeInstructions),
+        ("patient instructions", DischargeInstructions),
+        ("instructions", DischargeInstructions),
+        ("safety net", DischargeInstructions),
+        ("safety netting", DischargeInstructions),
+        ("safety-netting", DischargeInstructions),
+        ("return precautions", DischargeInstructions),
+        ("information for the patient", DischargeInstructions),
+        ("follow up", FollowUp),
+        ("follow-up", FollowUp),
+        ("followup", FollowUp),
+        ("f/u", FollowUp),
+        ("follow up arrangements", FollowUp),
+    ]
+};
+
+fn lookup(title: &str) -> Option<SectionKind> {
+    let norm: String = title
+        .split_whitespace()
+        .collect::<Vec<_>>()
+        .join(" ")
+        .to_ascii_lowercase();
+    let norm = norm.trim_end_matches(['.', ':']).trim();
+    TITLES.iter().find(|(t, _)| *t == norm).map(|(_, k)| *k)
+}
+
+/// Find the sections of a text.
+pub fn find(text: &str, index: &LineIndex) -> Vec<Section> {
+    let mut heads: Vec<(SectionKind, usize, usize)> = Vec::new();
+    for line_no in 0..index.line_count() {
+        let range = index.line_range(line_no);
+        let line = &text[range.clone()];
+        let lead = line.len()
+            - line
+                .trim_start_matches([' ', '\t', '-', '*', '•', '#'])
+                .len();
+        let body = &line[lead..];
+        if body.is_empty() {
+            continue;
+        }
+        let start = range.start + lead;
+        // Title followed by a colon (or " - ").
+        let delim = body
+            .char_indices()
+            .take_while(|(i, _)| *i <= 48)
+            .find(|(_, c)| *c == ':')
+            .map(|(i, _)| (i, i + 1))
+            .or_else(|| body.find(" - ").map(|i| (i, i + 3)));
+        if let Some((at, after)) = delim {
+            let title = &body[..at];
+            if let Some(kind) = lookup(title) {
+                // Single letters (S:, O:, A:, P:) only with a colon, and only when they are
+                // upper case, so that "a: ..." or "p - ..." in prose do not open sections.
+                let short = title.trim().len() <= 2;
+                if !short
+                    || (body.as_bytes()[at] == b':'
+                        && title
+                            .trim()
+                            .chars()
+                            .all(|c| c.is_ascii_uppercase() || c == '/'))
+                {
+                    heads.push((kind, start, start + after));
+                    continue;
+                }
+            }
+        }
+        // A title alone on its line.
+        let alone = body.trim_end_matches([':', ' ', '\t']);
+        if alone.len() <= 48 && alone.len() > 2 {
+            if let Some(kind) = lookup(alone) {
+                heads.push((kind, start, range.end));
+            }
+        }
+    }
+    let mut out = Vec::with_capacity(heads.len());
+    for (i, (kind, start, header_end)) in heads.iter().enumerate() {
+        let end = heads.get(i + 1).map(|h| h.1).unwrap_or(text.len());
+        out.push(Section {
+            kind: *kind,
+            title: text[*start..*header_end].trim_end().to_string(),
+            header: index.span(*start, *header_end),
+            span: index.span(*start, end),
+        });
+    }
+    out
+}
+
+/// Index of the section holding byte `offset`, if any.
+pub fn section_at(sections: &[Section], offset: usize) -> Option<usize> {
+    let i = sections.partition_point(|s| s.span.start <= offset);
+    (i > 0 && offset < sections[i - 1].span.end).then(|| i - 1)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn kinds(text: &str) -> Vec<(SectionKind, String)> {
+        let idx = LineIndex::new(text);
+        find(text, &idx)
+            .into_iter()
+            .map(|s| (s.kind, s.title))
+            .collect()
+    }
+
+    #[test]
+    fn headers_with_and_without_colons() {
+        let text = "PAST MEDICAL HISTORY\nHTN\nO/E: JVP +3\nFamily history: mother HF\n  Plan - diurese\nS: better\n";
+        assert_eq!(
+            kinds(text),
+            vec![
+                (SectionKind::PastHistory, "PAST MEDICAL HISTORY".into()),
+                (SectionKind::Examination, "O/E:".into()),
+                (SectionKind::FamilyHistory, "Family history:".into()),
+                (SectionKind::Plan, "Plan -".into()),
+                (SectionKind::Subjective, "S:".into()),
+            ]
+        );
+    }
+
+    #[test]
+    fn prose_with_colons_is_not_a_header() {
+        assert!(kinds("Weight: 82 kg\nNote: seen with wife\n").is_empty());
+        assert!(kinds("a: one\n").is_empty());
+    }
+}
