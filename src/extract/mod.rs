@@ -1,11 +1,180 @@
 //! Extraction: from text to the model.
+//!
+//! The order of work for one document:
+//! 1. the text layer finds sections, sentences and dates; the lexicon scan finds every
+//!    label, finding term, context cue and statement term with its byte span;
+//! 2. [`measure`] runs the value grammar right after each measurement label, and
+//!    [`bare`] picks up values written without a label (`82.4 kg`, `98/60 mmHg`) and
+//!    small tables;
+//! 3. [`findings`] turns finding and statement terms into findings and statements;
+//! 4. every item gets its assertion context from [`crate::context`], its section and its
+//!    documented day ([`episodes`]).
 
+pub mod bare;
+pub mod episodes;
+pub mod findings;
 pub mod lexicon;
+pub mod measure;
+mod numbers;
 
-use crate::config::ExtractOptions;
-use crate::model::Extraction;
+use crate::config::{DateOrder, ExtractOptions, UnitSystem};
+use crate::context::ContextEngine;
+use crate::model::{Episode, Extraction, Measurement, Section};
+use crate::span::LineIndex;
+use crate::text::dates::{self, FoundDate};
+use crate::text::{sections, segment::Sentences};
+
+/// The shared, read-only view of one document that the extraction passes work from.
+pub struct Doc<'a> {
+    pub text: &'a str,
+    pub index: &'a LineIndex<'a>,
+    pub sections: &'a [Section],
+    pub hits: &'a [lexicon::Hit],
+    pub engine: &'a ContextEngine<'a>,
+    pub dates: &'a [FoundDate],
+    pub episodes: &'a [Episode],
+    /// The document reads in US conventional units (lb, °F, mg/dL) by default.
+    pub us_units: bool,
+    /// The unit the document writes weights in, when it writes one consistently.
+    pub weight_unit: Option<&'static str>,
+}
+
+impl Doc<'_> {
+    /// The line holding `offset`, as a byte range without its line break.
+    pub fn line_at(&self, offset: usize) -> std::ops::Range<usize> {
+        let line = self.index.line_of(offset);
+        self.index.line_range(line)
+    }
+
+    pub fn section_of(&self, offset: usize) -> Option<usize> {
+        sections::section_at(self.sections, offset)
+    }
+
+    pub fn episode_of(&self, offset: usize) -> Option<usize> {
+        episodes::episode_at(self.episodes, offset)
+    }
+
+    /// The date written on the same line before `offset`, if any (a dated row or entry).
+    pub fn line_date(&self, offset: usize) -> Option<String> {
+        let line = self.line_at(offset);
+        self.dates
+            .iter()
+            .rev()
+            .find(|d| d.start >= line.start && d.end <= offset)
+            .map(|d| d.iso.clone())
+    }
+}
+
+/// Whether the document is written in US conventional units, judged from the units it
+/// writes (common practice, no source: a note that writes lb, °F or mg/dL creatinine uses
+/// them for its unlabelled values too).
+fn detect_us_units(text: &str, system: UnitSystem) -> bool {
+    match system {
+        UnitSystem::Si => return false,
+        UnitSystem::Us => return true,
+        UnitSystem::Auto => {}
+    }
+    let lower = text.to_ascii_lowercase();
+    let count = |pats: &[&str]| -> usize { pats.iter().map(|p| lower.matches(p).count()).sum() };
+    let us = count(&[" lb", "lbs", "°f", "mg/dl", "bun", " deg f", "pounds"]);
+    let si = count(&[" kg", "kg ", "°c", "µmol", "umol", "μmol", " deg c", "g/l"]);
+    us > si
+}
+
+/// The weight unit a document writes consistently (`kg` or `[lb_av]`), used to read
+/// weights written without a unit.
+fn detect_weight_unit(text: &str) -> Option<&'static str> {
+    let re = numbers::weight_unit_re();
+    let (mut kg, mut lb) = (0usize, 0usize);
+    for c in re.captures_iter(text) {
+        if c[1].to_ascii_lowercase().starts_with('k') {
+            kg += 1;
+        } else {
+            lb += 1;
+        }
+    }
+    match (kg, lb) {
+        (0, 0) => None,
+        (k, l) if k >= l => Some("kg"),
+        _ => Some("[lb_av]"),
+    }
+}
 
 /// Extract everything one document documents.
-pub fn extract(_text: &str, _opts: &ExtractOptions) -> Extraction {
-    Extraction::default()
+pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
+    let index = LineIndex::new(text);
+    let sections = sections::find(text, &index);
+    let sentences = Sentences::new(text);
+    let hits = lexicon::scan(text);
+    let us_units = detect_us_units(text, opts.unit_system);
+    let order = dates::resolve_order(text, opts.date_order, us_units);
+    let default_year = dates::find_dates(text, order, None)
+        .first()
+        .and_then(|d| d.iso.get(..4))
+        .and_then(|y| y.parse().ok());
+    let found_dates = dates::find_dates(text, order, default_year);
+    let episodes = episodes::find(text, &index, &found_dates);
+    let engine = ContextEngine::new(text, &index, &sentences, &sections, &hits);
+    let doc = Doc {
+        text,
+        index: &index,
+        sections: &sections,
+        hits: &hits,
+        engine: &engine,
+        dates: &found_dates,
+        episodes: &episodes,
+        us_units,
+        weight_unit: detect_weight_unit(text),
+    };
+
+    let mut out = measure::Output::default();
+    measure::labelled(&doc, &mut out);
+    bare::tables(&doc, &mut out);
+    bare::unlabelled(&doc, &mut out);
+    findings::findings(&doc, &mut out);
+    findings::statements(&doc, &mut out);
+    findings::patient_facts(&doc, &mut out);
+
+    let mut measurements = dedupe(out.measurements);
+    measurements.sort_by_key(|m| (m.span.start, m.concept));
+    out.findings.sort_by_key(|f| f.span.start);
+    out.statements.sort_by_key(|s| s.span.start);
+    let note_date = episodes::note_date(text, &index, &found_dates, &episodes);
+    Extraction {
+        sections: sections.clone(),
+        episodes,
+        measurements,
+        findings: out.findings,
+        statements: out.statements,
+        medications: Vec::new(),
+        note_date,
+    }
+}
+
+/// Drop measurements that repeat another of the same concept over the same text (a label
+/// read twice by two passes).
+fn dedupe(mut ms: Vec<Measurement>) -> Vec<Measurement> {
+    ms.sort_by_key(|m| (m.concept, m.span.start, std::cmp::Reverse(m.span.end)));
+    let mut out: Vec<Measurement> = Vec::with_capacity(ms.len());
+    for m in ms {
+        let dup = out.iter().rev().take(8).any(|o| {
+            o.concept == m.concept
+                && o.span.start <= m.span.start
+                && m.span.end <= o.span.end
+                && (o.value - m.value).abs() < 1e-9
+        });
+        if !dup {
+            out.push(m);
+        }
+    }
+    out
+}
+
+/// Day/month order of a document, for callers outside extraction (the handover sheet).
+pub fn date_order(text: &str, opts: &ExtractOptions) -> DateOrder {
+    dates::resolve_order(
+        text,
+        opts.date_order,
+        detect_us_units(text, opts.unit_system),
+    )
 }

@@ -1,0 +1,508 @@
+//! Values written without a label (`82.4 kg (yesterday 83.1)`, `98/60 mmHg sitting`,
+//! `94% on 2 L`, `37.9°C`) and small tables (a header row naming the columns, then one row
+//! per day or per time).
+
+use std::sync::OnceLock;
+
+use regex::Regex;
+
+use super::measure::{parse_at, push, simple_readings, Output, Reading};
+use super::numbers::parse_number;
+use super::Doc;
+use crate::grammar::Rule;
+use crate::model::MeasureConcept;
+
+fn re(cell: &'static OnceLock<Regex>, pat: &str) -> &'static Regex {
+    cell.get_or_init(|| Regex::new(pat).expect("valid regex"))
+}
+
+/// Words before a weight or volume that make it a change, a target or a dose, not a
+/// measurement (common practice, no source).
+const NOT_A_VALUE_BEFORE: &[&str] = &[
+    "target",
+    "dry",
+    "goal",
+    "ideal",
+    "aim",
+    "lost",
+    "loss",
+    "losing",
+    "lose",
+    "gain",
+    "gained",
+    "gaining",
+    "down",
+    "up ",
+    "change",
+    "by ",
+    "reduction",
+    "increase",
+    "increased",
+    "drop",
+    "dropped",
+    "fallen",
+    "fell",
+    "rise",
+    "risen",
+    "diff",
+    "per ",
+    "bmi",
+    "estimated dry",
+    "restrict",
+    "bolus",
+    "over ",
+    "more than",
+    "less than",
+    "under ",
+    "above",
+    "below",
+];
+
+fn preceded_by_change(doc: &Doc, start: usize) -> bool {
+    let line = doc.line_at(start);
+    let mut from = start.saturating_sub(24).max(line.start);
+    while !doc.text.is_char_boundary(from) {
+        from += 1;
+    }
+    let before = doc.text[from..start].to_ascii_lowercase();
+    let tight = before.trim_end();
+    tight.ends_with(['+', '-', '−', '↑', '↓', '~'])
+        || NOT_A_VALUE_BEFORE.iter().any(|w| before.contains(w))
+}
+
+/// Values without a label.
+pub fn unlabelled(doc: &Doc, out: &mut Output) {
+    weights(doc, out);
+    temperatures(doc, out);
+    blood_pressures(doc, out);
+    saturations(doc, out);
+    heart_rates(doc, out);
+}
+
+fn weights(doc: &Doc, out: &mut Output) {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    let r = re(
+        &RE,
+        r"(?i)\b(\d{2,3}(?:\.\d{1,2})?)\s?(kgs?|kilos|lbs?|pounds)\b",
+    );
+    for c in r.captures_iter(doc.text) {
+        let m = c.get(0).expect("match");
+        let num = c.get(1).expect("group");
+        if out.is_covered(m.start(), m.end()) || preceded_by_change(doc, m.start()) {
+            continue;
+        }
+        let after = &doc.text[m.end()..(m.end() + 12).min(doc.text.len())];
+        let after = after.get(..).unwrap_or("");
+        if after.starts_with('/')
+            || after
+                .trim_start()
+                .to_ascii_lowercase()
+                .starts_with("weight loss")
+            || after.trim_start().to_ascii_lowercase().starts_with("loss")
+            || after.trim_start().to_ascii_lowercase().starts_with("gain")
+        {
+            continue;
+        }
+        let Some(v) = parse_number(num.as_str()) else {
+            continue;
+        };
+        if !(20.0..=400.0).contains(&v) {
+            continue;
+        }
+        // Reuse the weight grammar from the number on, for asides and chains.
+        if let Some(p) = parse_at(doc, Rule::weight_value, num.start()) {
+            let rs = simple_readings(p, num.start());
+            for (i, rd) in rs.iter().enumerate() {
+                let s = if i == 0 { num.start() } else { rd.start };
+                push(doc, out, MeasureConcept::Weight, rd, s, false);
+            }
+        }
+    }
+}
+
+fn temperatures(doc: &Doc, out: &mut Output) {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    let r = re(
+        &RE,
+        r"(?i)\b(\d{2,3}(?:\.\d{1,2})?)\s?(°\s?[CF]\b|º\s?[CF]\b|deg(?:rees?)?\s?[CF]\b|degrees (?:celsius|fahrenheit)|celsius|fahrenheit)",
+    );
+    for c in r.captures_iter(doc.text) {
+        let m = c.get(0).expect("match");
+        if out.is_covered(m.start(), m.end()) {
+            continue;
+        }
+        let Some(v) = parse_number(&c[1]) else {
+            continue;
+        };
+        if !((25.0..=45.0).contains(&v) || (77.0..=113.0).contains(&v)) {
+            continue;
+        }
+        let rd = Reading {
+            value: v,
+            start: m.start(),
+            end: m.end(),
+            unit_text: Some(c[2].to_string()),
+            ..Reading::default()
+        };
+        push(doc, out, MeasureConcept::Temperature, &rd, m.start(), false);
+    }
+}
+
+fn blood_pressures(doc: &Doc, out: &mut Output) {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    let r = re(
+        &RE,
+        r"(?i)\b(\d{2,3})\s?/\s?(\d{2,3})\b(\s*(?:mm ?hg|sitting|standing|lying|supine|seated))?",
+    );
+    for c in r.captures_iter(doc.text) {
+        let m = c.get(0).expect("match");
+        if out.is_covered(m.start(), m.end())
+            || doc
+                .dates
+                .iter()
+                .any(|d| d.start < m.end() && m.start() < d.end)
+        {
+            continue;
+        }
+        let (Some(sys), Some(dia)) = (parse_number(&c[1]), parse_number(&c[2])) else {
+            continue;
+        };
+        // Without a unit or posture, only on an observations line.
+        if c.get(3).is_none() {
+            let line = doc.text[doc.line_at(m.start())].to_ascii_lowercase();
+            if !(line.contains("obs") || line.contains("vitals") || line.contains("news")) {
+                continue;
+            }
+        }
+        if !(50.0..=300.0).contains(&sys) || !(20.0..=200.0).contains(&dia) || dia >= sys {
+            continue;
+        }
+        let unit = c
+            .get(3)
+            .map(|u| u.as_str().trim().to_string())
+            .filter(|u| u.to_ascii_lowercase().starts_with("mm"));
+        for (concept, value) in [
+            (MeasureConcept::SystolicBp, sys),
+            (MeasureConcept::DiastolicBp, dia),
+        ] {
+            let rd = Reading {
+                value,
+                start: m.start(),
+                end: m.end(),
+                unit_text: unit.clone(),
+                ..Reading::default()
+            };
+            push(doc, out, concept, &rd, m.start(), false);
+        }
+    }
+}
+
+fn saturations(doc: &Doc, out: &mut Output) {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    let r = re(
+        &RE,
+        r"(?i)\b(\d{2,3})\s?%\s?(?:on\s+)?(?:RA\b|room air|air\b|\d+\s?L\b|\d+\s?l/min|NC\b|FiO2|O2\b|oxygen)",
+    );
+    for c in r.captures_iter(doc.text) {
+        let m = c.get(0).expect("match");
+        if out.is_covered(m.start(), m.end()) {
+            continue;
+        }
+        let Some(v) = parse_number(&c[1]) else {
+            continue;
+        };
+        if !(50.0..=100.0).contains(&v) {
+            continue;
+        }
+        let rd = Reading {
+            value: v,
+            start: m.start(),
+            end: m.end(),
+            unit_text: Some("%".into()),
+            ..Reading::default()
+        };
+        push(doc, out, MeasureConcept::Spo2, &rd, m.start(), false);
+    }
+}
+
+fn heart_rates(doc: &Doc, out: &mut Output) {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    let r = re(
+        &RE,
+        r"(?i)\b(\d{2,3})\s?(?:bpm|beats per minute|beats/min)\b",
+    );
+    for c in r.captures_iter(doc.text) {
+        let m = c.get(0).expect("match");
+        if out.is_covered(m.start(), m.end()) {
+            continue;
+        }
+        let Some(v) = parse_number(&c[1]) else {
+            continue;
+        };
+        let rd = Reading {
+            value: v,
+            start: m.start(),
+            end: m.end(),
+            unit_text: Some("bpm".into()),
+            ..Reading::default()
+        };
+        push(doc, out, MeasureConcept::HeartRate, &rd, m.start(), false);
+    }
+}
+
+/// What a table column holds.
+#[derive(Debug, Clone, Copy, PartialEq)]
+enum Column {
+    Date,
+    Time,
+    Value(MeasureConcept, Option<&'static str>),
+    Bp,
+    Ignore,
+}
+
+fn column_of(header: &str) -> Column {
+    let h = header.trim().to_ascii_lowercase();
+    let unit = if h.contains("kg") {
+        Some("kg")
+    } else if h.contains("lb") {
+        Some("lb")
+    } else if h.contains("ml") {
+        Some("mL")
+    } else if h.contains("(l)") || h.ends_with(" l") {
+        Some("L")
+    } else {
+        None
+    };
+    let word = h
+        .split(|c: char| !c.is_alphanumeric() && c != '/')
+        .find(|w| !w.is_empty())
+        .unwrap_or("");
+    use MeasureConcept as M;
+    match word {
+        "date" | "day" => Column::Date,
+        "time" => Column::Time,
+        "weight" | "wt" | "weights" => Column::Value(M::Weight, unit.or(None)),
+        "urine" | "uo" | "uop" | "output" | "out" => Column::Value(M::UrineOutput, unit),
+        "net" | "balance" | "fb" => Column::Value(M::FluidBalance, unit),
+        "bp" => Column::Bp,
+        "hr" | "pulse" => Column::Value(M::HeartRate, None),
+        "rr" | "resp" => Column::Value(M::RespiratoryRate, None),
+        "spo2" | "sats" | "sat" => Column::Value(M::Spo2, Some("%")),
+        "temp" | "t" => Column::Value(M::Temperature, None),
+        "cr" | "creat" | "creatinine" => Column::Value(M::Creatinine, None),
+        "k" | "potassium" => Column::Value(M::Potassium, Some("mmol/L")),
+        "na" | "sodium" => Column::Value(M::Sodium, Some("mmol/L")),
+        "urea" => Column::Value(M::Urea, None),
+        _ => Column::Ignore,
+    }
+}
+
+/// Split a table line into cells: `|`, tabs, or two or more spaces.
+fn cells(line: &str, base: usize) -> Vec<(usize, &str)> {
+    let mut out = Vec::new();
+    let sep: fn(&str) -> Vec<(usize, &str)> = if line.contains('|') {
+        |l| split_keep(l, |s| s.find('|').map(|i| (i, i + 1)))
+    } else if line.contains('\t') {
+        |l| split_keep(l, |s| s.find('\t').map(|i| (i, i + 1)))
+    } else {
+        |l| {
+            split_keep(l, |s| {
+                s.find("  ").map(|i| {
+                    let n = s[i..].len() - s[i..].trim_start_matches(' ').len();
+                    (i, i + n)
+                })
+            })
+        }
+    };
+    for (off, cell) in sep(line) {
+        let trimmed = cell.trim();
+        if trimmed.is_empty() {
+            continue;
+        }
+        let lead = cell.len() - cell.trim_start().len();
+        out.push((base + off + lead, trimmed));
+    }
+    out
+}
+
+fn split_keep(line: &str, next: impl Fn(&str) -> Option<(usize, usize)>) -> Vec<(usize, &str)> {
+    let mut out = Vec::new();
+    let mut pos = 0;
+    while pos <= line.len() {
+        match next(&line[pos..]) {
+            Some((a, b)) => {
+                out.push((pos, &line[pos..pos + a]));
+                pos += b;
+            }
+            None => {
+                out.push((pos, &line[pos..]));
+                break;
+            }
+        }
+    }
+    out
+}
+
+/// Tables with a header row.
+pub fn tables(doc: &Doc, out: &mut Output) {
+    let lines = doc.index.line_count();
+    let mut line_no = 0;
+    while line_no < lines {
+        let range = doc.index.line_range(line_no);
+        let header = &doc.text[range.clone()];
+        let hcells = cells(header, range.start);
+        let cols: Vec<Column> = hcells.iter().map(|(_, h)| column_of(h)).collect();
+        let measures = cols
+            .iter()
+            .filter(|c| matches!(c, Column::Value(..) | Column::Bp))
+            .count();
+        let has_digits = header.chars().filter(|c| c.is_ascii_digit()).count() > 2;
+        if hcells.len() < 2
+            || measures == 0
+            || has_digits
+            || !cols.contains(&Column::Date) && measures < 2
+        {
+            line_no += 1;
+            continue;
+        }
+        let mut row_no = line_no + 1;
+        while row_no < lines {
+            let rr = doc.index.line_range(row_no);
+            let row = &doc.text[rr.clone()];
+            if row.trim().is_empty()
+                || row.trim_start().starts_with("--")
+                    && row.trim().chars().all(|c| "-|+: ".contains(c))
+            {
+                if row.trim().is_empty() {
+                    break;
+                }
+                row_no += 1;
+                continue;
+            }
+            let rcells = cells(row, rr.start);
+            if rcells.len() < 2
+                || !rcells
+                    .iter()
+                    .skip(1)
+                    .any(|(_, c)| c.chars().any(|ch| ch.is_ascii_digit()))
+            {
+                break;
+            }
+            let date = rcells
+                .iter()
+                .zip(&cols)
+                .find(|(_, c)| **c == Column::Date)
+                .and_then(|((at, _), _)| {
+                    doc.dates
+                        .iter()
+                        .find(|d| d.start >= *at && d.start < *at + 12)
+                })
+                .map(|d| d.iso.clone());
+            for ((at, cell), col) in rcells.iter().zip(&cols) {
+                let (concept, unit) = match col {
+                    Column::Value(c, u) => (*c, *u),
+                    Column::Bp => {
+                        table_bp(doc, out, *at, cell, date.clone());
+                        continue;
+                    }
+                    _ => continue,
+                };
+                let end = at + cell.len();
+                if out.is_covered(*at, end) {
+                    continue;
+                }
+                let Some(rd) = cell_reading(cell, *at, unit, date.clone()) else {
+                    continue;
+                };
+                push(doc, out, concept, &rd, *at, false);
+            }
+            row_no += 1;
+        }
+        line_no = row_no.max(line_no + 1);
+    }
+}
+
+fn cell_reading(
+    cell: &str,
+    at: usize,
+    header_unit: Option<&str>,
+    date: Option<String>,
+) -> Option<Reading> {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    let r = re(&RE, r"^([+\-−]?)\s?(\d+(?:[.,]\d+)?)\s?([A-Za-zµ/%°]+)?");
+    let c = r.captures(cell)?;
+    let mut v = parse_number(&c[2].replace(',', "."))?;
+    if matches!(&c[1], "-" | "−") {
+        v = -v;
+    }
+    let unit = c
+        .get(3)
+        .map(|u| u.as_str().to_string())
+        .or_else(|| header_unit.map(str::to_string));
+    let m = c.get(0)?;
+    Some(Reading {
+        value: v,
+        start: at,
+        end: at + m.end(),
+        unit_text: unit,
+        date,
+        ..Reading::default()
+    })
+}
+
+fn table_bp(doc: &Doc, out: &mut Output, at: usize, cell: &str, date: Option<String>) {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    let r = re(&RE, r"^(\d{2,3})\s?/\s?(\d{2,3})");
+    let Some(c) = r.captures(cell) else { return };
+    let end = at + c.get(0).map(|m| m.end()).unwrap_or(0);
+    if out.is_covered(at, end) {
+        return;
+    }
+    for (concept, g) in [
+        (MeasureConcept::SystolicBp, 1),
+        (MeasureConcept::DiastolicBp, 2),
+    ] {
+        if let Some(v) = parse_number(&c[g]) {
+            let rd = Reading {
+                value: v,
+                start: at,
+                end,
+                date: date.clone(),
+                ..Reading::default()
+            };
+            push(doc, out, concept, &rd, at, false);
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn cells_split_on_bars_tabs_and_wide_spaces() {
+        let c = cells("Date | Weight (kg) | UO", 0);
+        assert_eq!(
+            c.iter().map(|x| x.1).collect::<Vec<_>>(),
+            ["Date", "Weight (kg)", "UO"]
+        );
+        let c = cells("01/06   89.0   1800", 10);
+        assert_eq!(c[1], (18, "89.0"));
+        let c = cells("a\tb", 0);
+        assert_eq!(c.len(), 2);
+    }
+
+    #[test]
+    fn header_columns() {
+        assert_eq!(
+            column_of("Weight (kg)"),
+            Column::Value(MeasureConcept::Weight, Some("kg"))
+        );
+        assert_eq!(
+            column_of("Net (mL)"),
+            Column::Value(MeasureConcept::FluidBalance, Some("mL"))
+        );
+        assert_eq!(column_of("Date"), Column::Date);
+        assert_eq!(column_of("Intake"), Column::Ignore);
+    }
+}

@@ -1,0 +1,559 @@
+//! Findings and statements from the lexicon's terms, and the patient's age and sex.
+//!
+//! A finding term has a polarity: `present` ("bibasal creps"), `absent` ("chest clear": the
+//! term itself says the sign is not there), `unassessable` ("JVP not seen": neither), or one
+//! of two terms that need a look at their neighbours: a pillow count (orthopnoea when two or
+//! more) and "added sounds" (crackles on a chest line, an S3 on a heart line).
+
+use std::sync::OnceLock;
+
+use regex::Regex;
+
+use super::lexicon::{Kind, Polarity, StatementKey};
+use super::measure::Output;
+use super::numbers::parse_number;
+use super::Doc;
+use crate::context::Target;
+use crate::model::{Assertion, Finding, FindingConcept, FindingDetail, Statement, StatementKind};
+
+fn re(cell: &'static OnceLock<Regex>, pat: &str) -> &'static Regex {
+    cell.get_or_init(|| Regex::new(pat).expect("valid regex"))
+}
+
+/// The text of the same line within `before` bytes before and `after` bytes after a range,
+/// on character boundaries.
+fn window(doc: &Doc, start: usize, end: usize, before: usize, after: usize) -> (usize, usize) {
+    let line = doc.line_at(start);
+    let mut a = start.saturating_sub(before).max(line.start);
+    while !doc.text.is_char_boundary(a) {
+        a += 1;
+    }
+    let line_end = doc.line_at(end.saturating_sub(1).max(start)).end;
+    let mut b = (end + after).min(line_end).max(end);
+    while !doc.text.is_char_boundary(b) {
+        b -= 1;
+    }
+    (a, b)
+}
+
+/// The words after a finding up to the next clause break.
+fn clause_after<'t>(doc: &Doc<'t>, end: usize, max: usize) -> &'t str {
+    let (_, b) = window(doc, end, end, 0, max);
+    let s = &doc.text[end..b];
+    let cut = s.find(['.', ';', ',', '(']).unwrap_or(s.len());
+    &s[..cut]
+}
+
+fn clause_before<'t>(doc: &Doc<'t>, start: usize, max: usize) -> &'t str {
+    let (a, _) = window(doc, start, start, max, 0);
+    let s = &doc.text[a..start];
+    let cut = s.rfind(['.', ';', ',', ')']).map(|i| i + 1).unwrap_or(0);
+    &s[cut..]
+}
+
+fn edema_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
+    static GRADE: OnceLock<Regex> = OnceLock::new();
+    static LEVEL: OnceLock<Regex> = OnceLock::new();
+    let grade = re(
+        &GRADE,
+        r"(?i)(?:\b([1-4])\s?\+|(?:^|[\s(])(\+{1,4})(?:[\s),.]|$)|\b(trace)\b|grade\s?([1-4])\b)",
+    );
+    let level = re(
+        &LEVEL,
+        r"(?i)\b(?:to|up to|extending to|reaching)\s+(?:the\s+)?(mid[- ]?shins?|mid[- ]?calf|mid[- ]?calves|mid[- ]?thighs?|ankles?|shins?|calf|calves|knees?|thighs?|groin|hips?|sacrum|abdomen|waist|abdominal wall)\b|\b(sacral|ankle|pedal|shin|knee|thigh)\b",
+    );
+    let before = clause_before(doc, start, 30);
+    let after = clause_after(doc, end, 60);
+    for s in [before, after] {
+        if d.grade.is_none() {
+            if let Some(c) = grade.captures(s) {
+                d.grade = if let Some(n) = c.get(1).or(c.get(4)) {
+                    parse_number(n.as_str())
+                } else if let Some(p) = c.get(2) {
+                    Some(p.as_str().len() as f64)
+                } else {
+                    Some(0.5)
+                };
+            }
+        }
+    }
+    let term = &doc.text[start..end];
+    for s in [after, term, before] {
+        if d.level.is_none() {
+            if let Some(c) = level.captures(s) {
+                let l = c
+                    .get(1)
+                    .or(c.get(2))
+                    .map(|m| m.as_str().to_ascii_lowercase())
+                    .unwrap_or_default();
+                d.level = Some(normalise_level(&l));
+            }
+        }
+    }
+}
+
+fn normalise_level(l: &str) -> String {
+    let l = l.replace(' ', "-");
+    let l = l.trim_end_matches('s');
+    match l {
+        "sacral" => "sacrum".into(),
+        "ankle" | "pedal" => "ankles".into(),
+        "shin" | "mid-shin" | "midshin" => "mid-shin".into(),
+        "knee" => "knees".into(),
+        "thigh" => "thighs".into(),
+        "calve" | "calf" | "mid-calve" | "mid-calf" => "mid-calf".into(),
+        other => other.to_string(),
+    }
+}
+
+fn crackles_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
+    static LEVEL: OnceLock<Regex> = OnceLock::new();
+    let level = re(
+        &LEVEL,
+        r"(?i)\b(bibasal|bibasilar|basal|bases|mid[- ]?zones?|midzones?|throughout|widespread|diffuse|apices|apex|upper zones?|half way up|halfway up)\b",
+    );
+    let (a, b) = window(doc, start, end, 30, 50);
+    if let Some(c) = level.captures(&doc.text[a..b]) {
+        let l = c[1].to_ascii_lowercase();
+        d.level = Some(
+            if l.starts_with("bibas") || l.starts_with("bas") || l == "bases" {
+                "bases"
+            } else if l.contains("mid") || l.contains("half") {
+                "mid-zones"
+            } else if l.starts_with("api") || l.starts_with("apex") || l.starts_with("upper") {
+                "apices"
+            } else {
+                "throughout"
+            }
+            .to_string(),
+        );
+    }
+}
+
+fn trend_of(doc: &Doc, end: usize) -> Option<String> {
+    static TREND: OnceLock<Regex> = OnceLock::new();
+    let t = re(
+        &TREND,
+        r"(?i)\b(improving|improved|resolving|resolved|worse|worsening|better|increasing|increased|decreasing|reduced|less|more|unchanged|persistent|ongoing)\b",
+    );
+    t.captures(clause_after(doc, end, 40))
+        .map(|c| c[1].to_ascii_lowercase())
+}
+
+/// How many pillows a pillow term counts, and whether the words say "extra".
+fn pillow_count(doc: &Doc, start: usize) -> (Option<u32>, bool) {
+    static NUM: OnceLock<Regex> = OnceLock::new();
+    let n = re(
+        &NUM,
+        r"(?i)(\d+|one|two|three|four|five|six|several|multiple|extra|more|many|a few)\s*(?:-\s*)?(?:extra\s+|more\s+)?$",
+    );
+    let before = clause_before(doc, start, 24);
+    match n.captures(before.trim_end_matches(['-', ' '])) {
+        Some(c) => {
+            let w = c[1].to_ascii_lowercase();
+            match parse_number(&w) {
+                Some(v) => (Some(v as u32), false),
+                None => (None, true),
+            }
+        }
+        None => (None, before.to_ascii_lowercase().contains("propped")),
+    }
+}
+
+/// Decide what "added sounds" refers to from the words before it on the line.
+fn added_concept(doc: &Doc, start: usize) -> FindingConcept {
+    let (a, _) = window(doc, start, start, 48, 0);
+    let before = doc.text[a..start].to_ascii_lowercase();
+    let chest = [
+        "chest",
+        "lung",
+        "breath",
+        "air entry",
+        "resp",
+        "ae ",
+        "auscultation",
+    ]
+    .iter()
+    .filter_map(|w| before.rfind(w))
+    .max();
+    let heart = ["heart", "hs ", "hs:", "s1", "cvs", "murmur", "cardiac"]
+        .iter()
+        .filter_map(|w| before.rfind(w))
+        .max();
+    match (chest, heart) {
+        (Some(c), Some(h)) if c > h => FindingConcept::Crackles,
+        (Some(_), None) => FindingConcept::Crackles,
+        _ => FindingConcept::S3,
+    }
+}
+
+/// Findings from finding terms.
+pub fn findings(doc: &Doc, out: &mut Output) {
+    let terms: Vec<_> = doc
+        .hits
+        .iter()
+        .filter_map(|h| match h.kind {
+            Kind::Finding(c, p) => Some((h.start, h.end, c, p)),
+            _ => None,
+        })
+        .collect();
+    for &(start, end, mut concept, polarity) in &terms {
+        let mut detail = FindingDetail::default();
+        let present = match polarity {
+            Polarity::Unassessable => continue,
+            Polarity::Present => true,
+            Polarity::Absent => false,
+            Polarity::Added => {
+                concept = added_concept(doc, start);
+                true
+            }
+            Polarity::Pillows => {
+                let (count, extra) = pillow_count(doc, start);
+                // A pillow count next to an orthopnoea term belongs to that term.
+                let near_term = terms.iter().any(|&(s, e, c, p)| {
+                    c == FindingConcept::Orthopnea
+                        && p != Polarity::Pillows
+                        && (s.abs_diff(end) < 24 || e.abs_diff(start) < 24)
+                });
+                if near_term {
+                    continue;
+                }
+                detail.pillows = count;
+                match count {
+                    Some(n) => n >= 2,
+                    None => extra,
+                }
+            }
+        };
+        match concept {
+            FindingConcept::PeripheralEdema => edema_detail(doc, start, end, &mut detail),
+            FindingConcept::Crackles => crackles_detail(doc, start, end, &mut detail),
+            FindingConcept::Orthopnea if detail.pillows.is_none() => {
+                static P: OnceLock<Regex> = OnceLock::new();
+                let p = re(&P, r"(?i)(\d|one|two|three|four|five)[- ]pillows?");
+                let (a, b) = window(doc, start, end, 20, 30);
+                if let Some(c) = p.captures(&doc.text[a..b]) {
+                    detail.pillows = parse_number(&c[1]).map(|v| v as u32);
+                }
+            }
+            _ => {}
+        }
+        if present {
+            detail.trend = trend_of(doc, end);
+        }
+        let quantified =
+            detail.grade.is_some() || detail.level.is_some() || detail.pillows.is_some();
+        let ctx = doc.engine.context(start, end, Target::Finding, quantified);
+        let assertion = if present {
+            ctx.assertion
+        } else {
+            // An absent term stays absent under a list negation ("no orthopnoea, chest
+            // clear"); only uncertainty and conditions change it.
+            match ctx.assertion {
+                Assertion::Present | Assertion::Absent => Assertion::Absent,
+                other => other,
+            }
+        };
+        // "resolved", "gone" after a present term: the sign was there and is not now.
+        let assertion = if present
+            && assertion == Assertion::Present
+            && matches!(detail.trend.as_deref(), Some("resolved"))
+        {
+            Assertion::Absent
+        } else {
+            assertion
+        };
+        if present && polarity == Polarity::Pillows && assertion == Assertion::Present {
+            // "sleeps on one pillow" documents no orthopnoea.
+        }
+        out.findings.push(Finding {
+            concept,
+            assertion: if !present && polarity == Polarity::Pillows {
+                match assertion {
+                    Assertion::Present => Assertion::Absent,
+                    a => a,
+                }
+            } else {
+                assertion
+            },
+            experiencer: ctx.experiencer,
+            temporality: ctx.temporality,
+            text: doc.text[start..end].to_string(),
+            span: doc.index.span(start, end),
+            detail,
+            cues: ctx.cues,
+            section: doc.section_of(start),
+            episode: doc.episode_of(start),
+        });
+    }
+}
+
+/// Words allowed between an acuity word and the heart-failure term it qualifies.
+const ACUITY_GAP_WORDS: &[&str] = &[
+    "decompensated",
+    "congestive",
+    "left",
+    "right",
+    "ventricular",
+    "biventricular",
+    "cardiac",
+    "heart",
+    "on",
+    "of",
+    "with",
+    "severe",
+    "worsening",
+    "known",
+    "systolic",
+    "diastolic",
+    "combined",
+    "exacerbation",
+    "decompensation",
+    "hf",
+    "ccf",
+    "chf",
+    "-",
+    "–",
+    ":",
+    "(",
+    ")",
+];
+
+fn gap_ok(doc: &Doc, a: usize, b: usize) -> bool {
+    if a > b {
+        return false;
+    }
+    let gap = &doc.text[a..b];
+    if gap.len() > 40 || gap.contains(['.', ';', '\n']) {
+        return false;
+    }
+    gap.split(|c: char| c.is_whitespace() || c == ',')
+        .filter(|w| !w.is_empty())
+        .all(|w| ACUITY_GAP_WORDS.contains(&w.to_ascii_lowercase().as_str()))
+}
+
+/// Statements from statement terms.
+pub fn statements(doc: &Doc, out: &mut Output) {
+    let terms: Vec<_> = doc
+        .hits
+        .iter()
+        .filter_map(|h| match h.kind {
+            Kind::Statement(k, v) => Some((h.start, h.end, k, v)),
+            _ => None,
+        })
+        .collect();
+    let hf_terms: Vec<(usize, usize)> = terms
+        .iter()
+        .filter(|t| {
+            (t.2 == StatementKey::HeartFailure && t.3 != "service") || t.2 == StatementKey::HfType
+        })
+        .map(|t| (t.0, t.1))
+        .collect();
+    let push = |out: &mut Output, kind: StatementKind, value: &str, start: usize, end: usize| {
+        let ctx = doc.engine.context(start, end, Target::Statement, false);
+        out.statements.push(Statement {
+            kind,
+            value: value.to_string(),
+            assertion: ctx.assertion,
+            temporality: ctx.temporality,
+            experiencer: ctx.experiencer,
+            text: doc.text[start..end].to_string(),
+            span: doc.index.span(start, end),
+            section: doc.section_of(start),
+            episode: doc.episode_of(start),
+        });
+    };
+    for &(start, end, key, value) in &terms {
+        match key {
+            StatementKey::HeartFailure => match value {
+                "service" => {}
+                "acute" | "decompensated" => {
+                    push(out, StatementKind::HeartFailure, "named", start, end);
+                    push(out, StatementKind::Acuity, value, start, end);
+                }
+                _ => push(out, StatementKind::HeartFailure, "named", start, end),
+            },
+            StatementKey::Cardiomyopathy => {}
+            StatementKey::HfType => {
+                let term = doc.text[start..end].to_ascii_lowercase();
+                let names_hf = term.contains("hf")
+                    || term.contains("heart failure")
+                    || term.contains("chf")
+                    || term.contains("ccf");
+                if names_hf {
+                    push(out, StatementKind::HeartFailure, "named", start, end);
+                    push(out, StatementKind::HfType, value, start, end);
+                } else {
+                    // "reduced EF", "preserved ejection fraction": a type only when it
+                    // qualifies heart failure on the same line ("HF with reduced EF",
+                    // "heart failure (preserved EF)").
+                    let near = hf_terms.iter().any(|&(s, e)| {
+                        (e <= start && start - e <= 24 && doc.line_at(s) == doc.line_at(start))
+                            || (s >= end && s - end <= 8 && doc.line_at(s) == doc.line_at(start))
+                    });
+                    if near || value == "hfimpef" {
+                        push(out, StatementKind::HfType, value, start, end);
+                    }
+                }
+            }
+            StatementKey::Acuity => {
+                let attached = hf_terms.iter().any(|&(s, e)| {
+                    (s >= end && gap_ok(doc, end, s)) || (e <= start && gap_ok(doc, e, start))
+                });
+                if attached {
+                    push(out, StatementKind::Acuity, value, start, end);
+                }
+            }
+            StatementKey::VolumeStatus => push(out, StatementKind::VolumeStatus, value, start, end),
+            StatementKey::ProfileWord => {
+                let perf = if value.starts_with("warm") {
+                    "warm"
+                } else {
+                    "cold"
+                };
+                push(out, StatementKind::Perfusion, perf, start, end);
+            }
+            StatementKey::Hypertension => push(out, StatementKind::Hypertension, value, start, end),
+            StatementKey::Ckd => push(out, StatementKind::Ckd, value, start, end),
+            StatementKey::LvFunction => push(out, StatementKind::LvFunction, value, start, end),
+        }
+    }
+    combine_acuity(&mut out.statements);
+}
+
+/// "acute decompensated chronic heart failure": an acute and a chronic word on one heart
+/// failure term make it acute on chronic.
+fn combine_acuity(statements: &mut [Statement]) {
+    let idx: Vec<usize> = (0..statements.len())
+        .filter(|&i| statements[i].kind == StatementKind::Acuity)
+        .collect();
+    for w in idx.windows(2) {
+        let (a, b) = (w[0], w[1]);
+        let close = statements[b]
+            .span
+            .start
+            .saturating_sub(statements[a].span.end)
+            <= 24
+            && statements[a].span.line == statements[b].span.line;
+        let vals = (statements[a].value.as_str(), statements[b].value.as_str());
+        let combine = matches!(
+            vals,
+            ("acute" | "decompensated", "chronic") | ("chronic", "acute" | "decompensated")
+        );
+        if close && combine {
+            statements[a].value = "acute_on_chronic".into();
+            statements[b].value = "acute_on_chronic".into();
+        }
+    }
+}
+
+/// Age and sex as notes write them: `78M`, `F, 67`, `82-year-old woman`, `Age: 74`,
+/// `Sex: female`, `Mrs K.L.`.
+pub fn patient_facts(doc: &Doc, out: &mut Output) {
+    static AGE_SEX: OnceLock<Regex> = OnceLock::new();
+    static SEX_AGE: OnceLock<Regex> = OnceLock::new();
+    static YEARS: OnceLock<Regex> = OnceLock::new();
+    static AGE_LABEL: OnceLock<Regex> = OnceLock::new();
+    static SEX_LABEL: OnceLock<Regex> = OnceLock::new();
+    static TITLE: OnceLock<Regex> = OnceLock::new();
+    let age_sex = re(
+        &AGE_SEX,
+        r"\b(\d{2,3})\s?(?:yo\s?|y/o\s?|y\.o\.\s?|yrs?\s?)?(M|F)\b",
+    );
+    let sex_age = re(&SEX_AGE, r"\b(M|F)\s?[,/]\s?(\d{2,3})\b");
+    let years = re(
+        &YEARS,
+        r"(?i)\b(\d{2,3})[- ]?(?:years?|yrs?|y)[- ]?old\b(?:\s+(man|woman|male|female|gentleman|lady|gent|boy|girl))?|\baged\s+(\d{2,3})\b|\b(\d{2,3})\s?(?:yo|y/o|y\.o\.)\s+(man|woman|male|female|gentleman|lady|gent)?",
+    );
+    let age_label = re(
+        &AGE_LABEL,
+        r"(?i)\bage\s*[:=]?\s*(\d{2,3})\b|\b(\d{2,3})\s+years\b",
+    );
+    let sex_label = re(
+        &SEX_LABEL,
+        r"(?i)\b(?:sex|gender)\s*[:=]?\s*(male|female|m|f|man|woman)\b",
+    );
+    let title = re(&TITLE, r"\b(Mr|Mrs|Ms|Miss)\b\.?\s+[A-Z]");
+    let text = doc.text;
+    let mut age: Option<(usize, usize, String)> = None;
+    let mut sex: Option<(usize, usize, String)> = None;
+    let set_sex = |sex: &mut Option<(usize, usize, String)>, s: usize, e: usize, w: &str| {
+        if sex.is_some() {
+            return;
+        }
+        let w = w.to_ascii_lowercase();
+        let v = match w.as_str() {
+            "m" | "male" | "man" | "gentleman" | "gent" | "boy" | "mr" => "male",
+            "f" | "female" | "woman" | "lady" | "girl" | "mrs" | "ms" | "miss" => "female",
+            _ => return,
+        };
+        *sex = Some((s, e, v.to_string()));
+    };
+    let valid_age = |v: &str| v.parse::<u32>().ok().filter(|a| (16..=115).contains(a));
+    if let Some(c) = years.captures(text) {
+        let m = c.get(0).expect("match");
+        if let Some(a) = c
+            .get(1)
+            .or(c.get(3))
+            .or(c.get(4))
+            .and_then(|g| valid_age(g.as_str()))
+        {
+            age = Some((m.start(), m.end(), a.to_string()));
+        }
+        if let Some(w) = c.get(2).or(c.get(5)) {
+            set_sex(&mut sex, m.start(), m.end(), w.as_str());
+        }
+    }
+    for c in age_sex.captures_iter(text) {
+        let m = c.get(0).expect("match");
+        // Not a grade or a unit: `2F` catheter sizes and `40M` do not make an age.
+        if let Some(a) = valid_age(&c[1]) {
+            if age.is_none() {
+                age = Some((m.start(), m.end(), a.to_string()));
+            }
+            set_sex(&mut sex, m.start(), m.end(), &c[2]);
+            break;
+        }
+    }
+    for c in sex_age.captures_iter(text) {
+        let m = c.get(0).expect("match");
+        if let Some(a) = valid_age(&c[2]) {
+            if age.is_none() {
+                age = Some((m.start(), m.end(), a.to_string()));
+            }
+            set_sex(&mut sex, m.start(), m.end(), &c[1]);
+            break;
+        }
+    }
+    if age.is_none() {
+        if let Some(c) = age_label.captures(text) {
+            let m = c.get(0).expect("match");
+            if let Some(a) = c.get(1).or(c.get(2)).and_then(|g| valid_age(g.as_str())) {
+                age = Some((m.start(), m.end(), a.to_string()));
+            }
+        }
+    }
+    if let Some(c) = sex_label.captures(text) {
+        let m = c.get(0).expect("match");
+        set_sex(&mut sex, m.start(), m.end(), &c[1]);
+    }
+    if let Some(c) = title.captures(text) {
+        let g = c.get(1).expect("group");
+        set_sex(&mut sex, g.start(), g.end(), g.as_str());
+    }
+    for (kind, fact) in [(StatementKind::Age, age), (StatementKind::Sex, sex)] {
+        if let Some((s, e, v)) = fact {
+            out.statements.push(Statement {
+                kind,
+                value: v,
+                assertion: Assertion::Present,
+                temporality: crate::model::Temporality::Current,
+                experiencer: crate::model::Experiencer::Patient,
+                text: text[s..e].to_string(),
+                span: doc.index.span(s, e),
+                section: doc.section_of(s),
+                episode: None,
+            });
+        }
+    }
+}

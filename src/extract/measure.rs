@@ -1,0 +1,1127 @@
+//! Labelled measurements: the lexicon finds a label (`BP`, `wt`, `Cr`), the value grammar
+//! reads what follows it on the same line, and this module turns the matched pairs into
+//! measurements with units, qualifiers, time references and dates.
+//!
+//! The grammar never reads past the end of the label's line nor more than
+//! [`MAX_VALUE_BYTES`] bytes, so the cost of a document is linear in its length.
+
+use pest::iterators::Pair;
+use pest::Parser;
+
+use super::lexicon::{Kind, Label};
+use super::numbers::{parse_number, time_ref};
+use super::Doc;
+use crate::context::Target;
+use crate::grammar::{Rule, ValueParser};
+use crate::model::{
+    Assertion, Finding, FindingConcept, FindingDetail, MeasureConcept, Measurement, Qualifier,
+    Quantity, Statement, StatementKind, TimeRef,
+};
+use crate::units;
+
+/// The longest stretch after a label the value grammar may read.
+pub const MAX_VALUE_BYTES: usize = 512;
+
+/// What the extraction passes produce, before sorting.
+#[derive(Debug, Default)]
+pub struct Output {
+    pub measurements: Vec<Measurement>,
+    pub findings: Vec<Finding>,
+    pub statements: Vec<Statement>,
+    /// Byte ranges already read as labelled values; the unlabelled pass skips them.
+    pub covered: Vec<(usize, usize)>,
+}
+
+impl Output {
+    pub fn is_covered(&self, start: usize, end: usize) -> bool {
+        self.covered.iter().any(|&(s, e)| start < e && s < end)
+    }
+}
+
+/// One number read by the grammar, with what qualifies it.
+#[derive(Debug, Clone, Default)]
+pub struct Reading {
+    pub value: f64,
+    pub range: Option<(f64, f64)>,
+    pub qualifier: Option<Qualifier>,
+    pub start: usize,
+    pub end: usize,
+    pub unit_text: Option<String>,
+    pub time_ref: Option<TimeRef>,
+    /// The reading is a target or goal (`target ~82`), not a measurement.
+    pub target: bool,
+    pub date: Option<String>,
+}
+
+/// Run `rule` on the text from `start` to the end of its line.
+pub fn parse_at<'t>(doc: &Doc<'t>, rule: Rule, start: usize) -> Option<Pair<'t, Rule>> {
+    let line = doc.line_at(start);
+    let mut end = line.end.min(start + MAX_VALUE_BYTES);
+    while !doc.text.is_char_boundary(end) {
+        end -= 1;
+    }
+    if start >= end {
+        return None;
+    }
+    let slice = &doc.text[start..end];
+    ValueParser::parse(rule, slice).ok()?.next()
+}
+
+fn qualifier_of(p: Pair<Rule>) -> Option<Qualifier> {
+    let inner = p.into_inner().next()?;
+    Some(match inner.as_rule() {
+        Rule::approx => Qualifier::Approximate,
+        Rule::upper => Qualifier::UpperBound,
+        Rule::lower => Qualifier::LowerBound,
+        _ => return None,
+    })
+}
+
+/// Read a `reading` or `range_reading` pair. `base` is the byte offset of the parsed slice.
+pub fn reading_of(p: Pair<Rule>, base: usize) -> Option<Reading> {
+    let span = p.as_span();
+    let mut nums = Vec::new();
+    let mut qualifier = None;
+    for c in p.into_inner() {
+        match c.as_rule() {
+            Rule::comparator => qualifier = qualifier_of(c),
+            Rule::number | Rule::word_number => nums.push(parse_number(c.as_str())?),
+            _ => {}
+        }
+    }
+    let (value, range) = match nums.as_slice() {
+        [v] => (*v, None),
+        [a, b] if b >= a => ((a + b) / 2.0, Some((*a, *b))),
+        // `35-30` is not a range: keep the first number only.
+        [a, _] => (*a, None),
+        _ => return None,
+    };
+    Some(Reading {
+        value,
+        range,
+        qualifier,
+        start: base + span.start(),
+        end: base + span.end(),
+        ..Reading::default()
+    })
+}
+
+/// Read the readings of a simple value rule: the main reading with its unit and trailing
+/// time word, then any asides (`(yesterday 83.1)`) and chains (`-> 131`).
+pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
+    let mut out: Vec<Reading> = Vec::new();
+    for c in p.into_inner() {
+        match c.as_rule() {
+            Rule::reading | Rule::range_reading if out.is_empty() => {
+                if let Some(r) = reading_of(c, base) {
+                    out.push(r);
+                }
+            }
+            Rule::unit => {
+                if let Some(r) = out.first_mut() {
+                    if r.unit_text.is_none() {
+                        r.unit_text = Some(c.as_str().to_string());
+                        r.end = base + c.as_span().end();
+                    }
+                }
+            }
+            Rule::decade => {
+                if let Some(r) = out.first_mut() {
+                    r.qualifier = Some(Qualifier::Approximate);
+                    r.end = base + c.as_span().end();
+                }
+            }
+            Rule::trailing_when => {
+                if let Some(r) = out.first_mut() {
+                    r.time_ref = time_ref(c.as_str());
+                }
+            }
+            Rule::aside => {
+                for item in c.into_inner() {
+                    if let Some(r) = item_reading(item, base) {
+                        out.push(r);
+                    }
+                }
+            }
+            Rule::chain => {
+                if let Some(r) = item_reading(c, base) {
+                    out.push(r);
+                }
+            }
+            _ => {}
+        }
+    }
+    // Asides and chains without a unit of their own share the main reading's unit.
+    if let Some(unit) = out.first().and_then(|r| r.unit_text.clone()) {
+        for r in out.iter_mut().skip(1) {
+            if r.unit_text.is_none() {
+                r.unit_text = Some(unit.clone());
+            }
+        }
+    }
+    out
+}
+
+/// An aside item or a chain link: `[target] [when] reading [unit] [when]`.
+fn item_reading(p: Pair<Rule>, base: usize) -> Option<Reading> {
+    let mut r: Option<Reading> = None;
+    let mut target = false;
+    let mut when = None;
+    for c in p.into_inner() {
+        match c.as_rule() {
+            Rule::target_word => target = true,
+            Rule::when => when = time_ref(c.as_str()).or(when),
+            Rule::reading => r = reading_of(c, base),
+            Rule::unit => {
+                if let Some(r) = r.as_mut() {
+                    r.unit_text = Some(c.as_str().to_string());
+                    r.end = base + c.as_span().end();
+                }
+            }
+            _ => {}
+        }
+    }
+    let mut r = r?;
+    r.target = target;
+    r.time_ref = when;
+    Some(r)
+}
+
+/// The unit a value written without one is read in: the document's own habits first, then
+/// the magnitude (common practice, no source: µmol/L creatinine is never below 20 and
+/// mg/dL creatinine is never above 20; g/dL haemoglobin is below 25).
+pub fn infer_unit(doc: &Doc, concept: MeasureConcept, value: f64, bun: bool) -> &'static str {
+    use MeasureConcept::*;
+    match concept {
+        Weight => doc
+            .weight_unit
+            .unwrap_or(if doc.us_units { "[lb_av]" } else { "kg" }),
+        Temperature => {
+            if value > 50.0 {
+                "[degF]"
+            } else {
+                "Cel"
+            }
+        }
+        Creatinine => {
+            if value < 20.0 {
+                "mg/dL"
+            } else {
+                "umol/L"
+            }
+        }
+        Urea => {
+            if bun || (doc.us_units && value > 40.0) {
+                "mg/dL"
+            } else {
+                "mmol/L"
+            }
+        }
+        Hemoglobin => {
+            if value < 25.0 {
+                "g/dL"
+            } else {
+                "g/L"
+            }
+        }
+        Lactate => "mmol/L",
+        FluidBalance | UrineOutput => {
+            if value.abs() < 15.0 && value.fract() != 0.0 {
+                "L"
+            } else {
+                "mL"
+            }
+        }
+        Height => {
+            if value < 3.0 {
+                "m"
+            } else if doc.us_units && value < 100.0 {
+                "[in_i]"
+            } else {
+                "cm"
+            }
+        }
+        Jvp => "cm",
+        other => other.canonical_unit(),
+    }
+}
+
+/// Words just before a value that make it a target, a threshold or an order rather than a
+/// measurement (`aim K > 4`, `if K ≥ 6.0`, `keep Mg above 1`).
+fn is_threshold(doc: &Doc, start: usize) -> bool {
+    let line = doc.line_at(start);
+    let from = start.saturating_sub(28).max(line.start);
+    let mut from = from;
+    while !doc.text.is_char_boundary(from) {
+        from += 1;
+    }
+    let before = doc.text[from..start].to_ascii_lowercase();
+    const WORDS: &[&str] = &[
+        "aim",
+        "target",
+        "goal",
+        "keep",
+        "maintain",
+        "titrate to",
+        "if ",
+        "unless",
+        "when ",
+        "should",
+        "threshold",
+        "until",
+        "ensure",
+        "hold if",
+        "omit if",
+        "stop if",
+    ];
+    WORDS.iter().any(|w| before.contains(w))
+}
+
+/// Build a measurement from a reading and push it, with its context, unit and date.
+pub fn push(
+    doc: &Doc,
+    out: &mut Output,
+    concept: MeasureConcept,
+    r: &Reading,
+    span_start: usize,
+    bun: bool,
+) {
+    if r.target {
+        return;
+    }
+    let written = r
+        .unit_text
+        .as_deref()
+        .and_then(units::ucum)
+        .filter(|code| units::accepts(concept, code));
+    let unit_inferred = written.is_none();
+    let code = written.unwrap_or_else(|| infer_unit(doc, concept, r.value, bun));
+    let normalized =
+        units::normalize(concept, r.value, code, bun).map(|(value, unit)| Quantity { value, unit });
+    let start = span_start.min(r.start);
+    let end = r.end.max(start);
+    let ctx = doc.engine.context(start, end, Target::Measurement, false);
+    let date = r
+        .date
+        .clone()
+        .or_else(|| doc.line_date(r.start))
+        .or_else(|| {
+            doc.episode_of(start)
+                .and_then(|i| doc.episodes[i].date.clone())
+        });
+    let time = crate::text::dates::find_time(&doc.text[doc.line_at(start)])
+        .filter(|_| doc.line_date(r.start).is_some())
+        .map(|(_, t)| t);
+    out.covered.push((start, end));
+    out.measurements.push(Measurement {
+        concept,
+        value: r.value,
+        unit: Some(code),
+        normalized,
+        unit_inferred,
+        date,
+        time,
+        assertion: ctx.assertion,
+        temporality: ctx.temporality,
+        experiencer: ctx.experiencer,
+        time_ref: r.time_ref,
+        range: r.range,
+        qualifier: r.qualifier,
+        unit_text: if unit_inferred {
+            None
+        } else {
+            r.unit_text.clone()
+        },
+        text: doc.text[start..end].to_string(),
+        span: doc.index.span(start, end),
+        section: doc.section_of(start),
+        episode: doc.episode_of(start),
+    });
+}
+
+fn lab_concept(l: Label) -> Option<(MeasureConcept, bool)> {
+    use MeasureConcept::*;
+    Some(match l {
+        Label::Bnp => (Bnp, false),
+        Label::NtProbnp => (NtProbnp, false),
+        Label::Creat => (Creatinine, false),
+        Label::Urea => (Urea, false),
+        Label::Bun => (Urea, true),
+        Label::Na => (Sodium, false),
+        Label::K => (Potassium, false),
+        Label::Lactate => (Lactate, false),
+        Label::Hb => (Hemoglobin, false),
+        _ => return None,
+    })
+}
+
+/// Physiological ranges a weak label's value must fall in to be read at all (`P 88` is a
+/// pulse, `P 2` is not). Common practice, no source.
+fn weak_ok(label: Label, r: &Reading) -> bool {
+    match label {
+        Label::HrWeak | Label::HrRhythm => (25.0..=250.0).contains(&r.value),
+        Label::TempWeak => (30.0..=45.0).contains(&r.value) || (86.0..=113.0).contains(&r.value),
+        Label::UoWeak | Label::UoPassed => r.unit_text.is_some(),
+        _ => true,
+    }
+}
+
+/// Read every labelled value in the document.
+pub fn labelled(doc: &Doc, out: &mut Output) {
+    for h in doc.hits {
+        let Kind::Label(label) = h.kind else { continue };
+        if is_threshold(doc, h.start) {
+            continue;
+        }
+        read_label(doc, out, label, h.start, h.end);
+    }
+}
+
+fn read_label(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
+    use MeasureConcept as M;
+    let simple = |rule: Rule, concept: M, bun: bool, out: &mut Output| {
+        if let Some(p) = parse_at(doc, rule, end) {
+            let rs = simple_readings(p, end);
+            for (i, r) in rs.iter().enumerate() {
+                if i == 0 && !weak_ok(label, r) {
+                    return;
+                }
+                push(
+                    doc,
+                    out,
+                    concept,
+                    r,
+                    if i == 0 { start } else { r.start },
+                    bun,
+                );
+            }
+        }
+    };
+    match label {
+        Label::Bp => blood_pressure(doc, out, start, end),
+        Label::Sbp => simple(Rule::single_bp, M::SystolicBp, false, out),
+        Label::Dbp => simple(Rule::single_bp, M::DiastolicBp, false, out),
+        Label::Hr | Label::HrWeak | Label::HrRhythm => {
+            simple(Rule::hr_value, M::HeartRate, false, out)
+        }
+        Label::Rr => simple(Rule::rr_value, M::RespiratoryRate, false, out),
+        Label::Spo2 => spo2(doc, out, start, end),
+        Label::Temp | Label::TempWeak => simple(Rule::temp_value, M::Temperature, false, out),
+        Label::Weight | Label::WeightAdm | Label::WeightDis | Label::WeightSeries => {
+            weight(doc, out, label, start, end)
+        }
+        Label::TargetWeight => target_weight(doc, out, start, end),
+        Label::Height => height(doc, out, start, end),
+        Label::Jvp | Label::Jvd => jvp(doc, out, label, start, end),
+        Label::Io => intake_output(doc, out, start, end),
+        Label::Fb => fluid_balance(doc, out, start, end),
+        Label::Uo | Label::UoWeak | Label::UoPassed => {
+            simple(Rule::uo_value, M::UrineOutput, false, out)
+        }
+        Label::Lvef => simple(Rule::lvef_value, M::Lvef, false, out),
+        Label::Nyha | Label::NyhaWeak => nyha(doc, out, label, start, end),
+        Label::Crt => capillary_refill(doc, out, start, end),
+        Label::Gcs => scored_mentation(doc, out, Rule::gcs_value, 15.0, start, end),
+        Label::Amts => scored_mentation(doc, out, Rule::amts_value, 8.0, start, end),
+        other => {
+            if let Some((concept, bun)) = lab_concept(other) {
+                simple(Rule::lab_value, concept, bun, out)
+            }
+        }
+    }
+}
+
+fn blood_pressure(doc: &Doc, out: &mut Output, start: usize, end: usize) {
+    let Some(p) = parse_at(doc, Rule::bp_value, end) else {
+        return;
+    };
+    let mut first = true;
+    for c in p.into_inner() {
+        if c.as_rule() != Rule::bp_reading {
+            continue;
+        }
+        let mut qualifier = None;
+        let mut nums = Vec::new();
+        let mut unit = None;
+        let mut when = None;
+        let rspan = c.as_span();
+        let mut rend = end + rspan.start();
+        for part in c.into_inner() {
+            match part.as_rule() {
+                Rule::comparator => qualifier = qualifier_of(part),
+                Rule::bp_pair => {
+                    rend = end + part.as_span().end();
+                    for n in part.into_inner() {
+                        if let Some(v) = parse_number(n.as_str()) {
+                            nums.push(v);
+                        }
+                    }
+                }
+                Rule::unit => {
+                    unit = Some(part.as_str().to_string());
+                    rend = end + part.as_span().end();
+                }
+                Rule::trailing_when => when = time_ref(part.as_str()),
+                _ => {}
+            }
+        }
+        let [sys, dia] = nums.as_slice() else {
+            continue;
+        };
+        let rstart = end + rspan.start();
+        let span_start = if first { start } else { rstart };
+        first = false;
+        for (concept, value) in [
+            (MeasureConcept::SystolicBp, *sys),
+            (MeasureConcept::DiastolicBp, *dia),
+        ] {
+            let r = Reading {
+                value,
+                qualifier,
+                start: rstart,
+                end: rend,
+                unit_text: unit.clone(),
+                time_ref: when,
+                ..Reading::default()
+            };
+            push(doc, out, concept, &r, span_start, false);
+        }
+    }
+}
+
+fn spo2(doc: &Doc, out: &mut Output, start: usize, end: usize) {
+    let Some(p) = parse_at(doc, Rule::spo2_value, end) else {
+        return;
+    };
+    let mut first = true;
+    for c in p.into_inner() {
+        if !matches!(c.as_rule(), Rule::spo2_reading | Rule::spo2_pct_reading) {
+            continue;
+        }
+        let span = c.as_span();
+        let mut r = Reading {
+            start: end + span.start(),
+            end: end + span.end(),
+            unit_text: Some("%".into()),
+            ..Reading::default()
+        };
+        let mut ok = false;
+        for part in c.into_inner() {
+            match part.as_rule() {
+                Rule::comparator => r.qualifier = qualifier_of(part),
+                Rule::number if !ok => {
+                    if let Some(v) = parse_number(part.as_str()) {
+                        r.value = v;
+                        ok = true;
+                    }
+                }
+                _ => {}
+            }
+        }
+        // `sats 4L` is an oxygen flow, not a saturation: a saturation is 50-100 %.
+        if ok && (50.0..=100.0).contains(&r.value) {
+            push(
+                doc,
+                out,
+                MeasureConcept::Spo2,
+                &r,
+                if first { start } else { r.start },
+                false,
+            );
+        }
+        first = false;
+    }
+}
+
+fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
+    // A series (`Weights: 01/06 89.0, 02/06 87.4` or `89.0 -> 87.4 -> 86.1 kg`) first.
+    if let Some(p) = parse_at(doc, Rule::series_value, end) {
+        let mut items = Vec::new();
+        for item in p.into_inner() {
+            if item.as_rule() != Rule::series_item {
+                continue;
+            }
+            let mut r: Option<Reading> = None;
+            let mut date = None;
+            for part in item.into_inner() {
+                match part.as_rule() {
+                    Rule::day_token => {
+                        let abs = end + part.as_span().start();
+                        date = doc
+                            .dates
+                            .iter()
+                            .find(|d| d.start == abs)
+                            .map(|d| d.iso.clone());
+                    }
+                    Rule::reading => r = reading_of(part, end),
+                    Rule::unit => {
+                        if let Some(r) = r.as_mut() {
+                            r.unit_text = Some(part.as_str().to_string());
+                            r.end = end + part.as_span().end();
+                        }
+                    }
+                    _ => {}
+                }
+            }
+            if let Some(mut r) = r {
+                r.date = date;
+                items.push(r);
+            }
+        }
+        let unit = items.iter().rev().find_map(|r| r.unit_text.clone());
+        // A series of plausible body weights only (common practice, no source: 20-350 kg).
+        if items.len() >= 2 && items.iter().all(|r| (20.0..=800.0).contains(&r.value)) {
+            for (i, r) in items.iter_mut().enumerate() {
+                if r.unit_text.is_none() {
+                    r.unit_text = unit.clone();
+                }
+                let s = if i == 0 { start } else { r.start };
+                push(doc, out, MeasureConcept::Weight, r, s, false);
+            }
+            return;
+        }
+    }
+    let Some(p) = parse_at(doc, Rule::weight_value, end) else {
+        return;
+    };
+    // Stone and pounds (`11 st 4 lb`) are one weight.
+    if let Some(sl) = p
+        .clone()
+        .into_inner()
+        .find(|c| c.as_rule() == Rule::stone_lb)
+    {
+        let span = sl.as_span();
+        let nums: Vec<f64> = sl
+            .into_inner()
+            .filter(|n| n.as_rule() == Rule::number)
+            .filter_map(|n| parse_number(n.as_str()))
+            .collect();
+        let lb = nums.first().copied().unwrap_or(0.0) * 14.0 + nums.get(1).copied().unwrap_or(0.0);
+        let r = Reading {
+            value: lb,
+            start: end + span.start(),
+            end: end + span.end(),
+            unit_text: Some("lb".into()),
+            ..Reading::default()
+        };
+        push(doc, out, MeasureConcept::Weight, &r, start, false);
+        if let Some(m) = out.measurements.last_mut() {
+            // Keep the figure as written in the text; the value is in pounds.
+            m.unit_text = Some(doc.text[end + span.start()..end + span.end()].to_string());
+        }
+        return;
+    }
+    let rs = simple_readings(p, end);
+    for (i, r) in rs.iter().enumerate() {
+        let mut r = r.clone();
+        if i == 0 {
+            r.time_ref = r.time_ref.or(match label {
+                Label::WeightAdm => Some(TimeRef::Admission),
+                Label::WeightDis => Some(TimeRef::Discharge),
+                _ => None,
+            });
+        }
+        push(
+            doc,
+            out,
+            MeasureConcept::Weight,
+            &r,
+            if i == 0 { start } else { r.start },
+            false,
+        );
+    }
+}
+
+fn target_weight(doc: &Doc, out: &mut Output, start: usize, end: usize) {
+    let Some(p) = parse_at(doc, Rule::target_value, end) else {
+        return;
+    };
+    let mut r = None;
+    let mut unit = None;
+    for c in p.into_inner() {
+        match c.as_rule() {
+            Rule::range_reading => r = reading_of(c, end),
+            Rule::unit => unit = Some((c.as_str().to_string(), end + c.as_span().end())),
+            _ => {}
+        }
+    }
+    let Some(mut r) = r else { return };
+    if let Some((u, e)) = unit {
+        r.unit_text = Some(u);
+        r.end = e;
+    }
+    let code = r
+        .unit_text
+        .as_deref()
+        .and_then(units::ucum)
+        .filter(|c| units::accepts(MeasureConcept::Weight, c))
+        .unwrap_or_else(|| infer_unit(doc, MeasureConcept::Weight, r.value, false));
+    let Some((kg, _)) = units::normalize(MeasureConcept::Weight, r.value, code, false) else {
+        return;
+    };
+    let ctx = doc.engine.context(start, r.end, Target::Statement, false);
+    out.covered.push((start, r.end));
+    out.statements.push(Statement {
+        kind: StatementKind::TargetWeight,
+        value: format!("{}", (kg * 10.0).round() / 10.0),
+        assertion: ctx.assertion,
+        temporality: ctx.temporality,
+        experiencer: ctx.experiencer,
+        text: doc.text[start..r.end].to_string(),
+        span: doc.index.span(start, r.end),
+        section: doc.section_of(start),
+        episode: doc.episode_of(start),
+    });
+}
+
+fn height(doc: &Doc, out: &mut Output, start: usize, end: usize) {
+    let Some(p) = parse_at(doc, Rule::height_value, end) else {
+        return;
+    };
+    if let Some(fi) = p.clone().into_inner().find(|c| c.as_rule() == Rule::ft_in) {
+        let span = fi.as_span();
+        let nums: Vec<f64> = fi
+            .into_inner()
+            .filter(|n| n.as_rule() == Rule::number)
+            .filter_map(|n| parse_number(n.as_str()))
+            .collect();
+        let inches =
+            nums.first().copied().unwrap_or(0.0) * 12.0 + nums.get(1).copied().unwrap_or(0.0);
+        let r = Reading {
+            value: inches,
+            start: end + span.start(),
+            end: end + span.end(),
+            unit_text: Some("in".into()),
+            ..Reading::default()
+        };
+        push(doc, out, MeasureConcept::Height, &r, start, false);
+        return;
+    }
+    for (i, r) in simple_readings(p, end).iter().enumerate() {
+        push(
+            doc,
+            out,
+            MeasureConcept::Height,
+            r,
+            if i == 0 { start } else { r.start },
+            false,
+        );
+    }
+}
+
+/// JVP: a number is a measurement (cm above the sternal angle unless the writer gives
+/// cm H2O or the right atrium as the reference), and it also documents whether the JVP is
+/// raised: more than 3 cm above the sternal angle, or more than 8 cm H2O from the right
+/// atrium (Bates' Guide to Physical Examination: the sternal angle sits about 5 cm above
+/// the right atrium). A level (`to the earlobes`) documents a raised JVP.
+fn jvp(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
+    let Some(p) = parse_at(doc, Rule::jvp_value, end) else {
+        if label == Label::Jvd {
+            // `JVD` alone is a finding term the lexicon also knows; nothing to read here.
+        }
+        return;
+    };
+    let pend = end + p.as_span().end();
+    let mut raised_word = false;
+    let mut level = None;
+    let mut reading = None;
+    let mut negative = false;
+    let mut from_ra = false;
+    for c in p.into_inner() {
+        match c.as_rule() {
+            Rule::jvp_state => {
+                let w = c.as_str().to_ascii_lowercase();
+                raised_word |= matches!(w.as_str(), "raised" | "elevated" | "up" | "↑");
+            }
+            Rule::jvp_level => level = Some(c.as_str().to_string()),
+            Rule::jvp_num => {
+                for part in c.into_inner() {
+                    match part.as_rule() {
+                        Rule::sign => negative = part.as_str() != "+",
+                        Rule::range_reading => reading = reading_of(part, end),
+                        Rule::unit => {
+                            let u = part.as_str().to_string();
+                            from_ra |= u.to_ascii_lowercase().contains("h2o")
+                                || u.to_ascii_lowercase().contains("h20")
+                                || u.to_ascii_lowercase().contains("water");
+                            if let Some(r) = reading.as_mut() {
+                                r.unit_text = Some(u);
+                                r.end = end + part.as_span().end();
+                            }
+                        }
+                        Rule::jvp_ref => {
+                            from_ra |= part.as_str().to_ascii_lowercase().contains("ra")
+                                && !part.as_str().to_ascii_lowercase().contains("sternal");
+                        }
+                        _ => {}
+                    }
+                }
+            }
+            _ => {}
+        }
+    }
+    // A finding term already covers `JVP raised`/`JVP not raised`: only add what the
+    // number or level documents when no finding term overlaps this value.
+    let term_here = doc.hits.iter().any(|h| {
+        matches!(h.kind, Kind::Finding(FindingConcept::RaisedJvp, _))
+            && h.start < pend
+            && start < h.end
+    });
+    let mut detail = FindingDetail::default();
+    let raised = if let Some(mut r) = reading {
+        if negative {
+            r.value = -r.value;
+        }
+        if r.unit_text.is_none() && from_ra {
+            r.unit_text = Some("cmH2O".into());
+        }
+        push(doc, out, MeasureConcept::Jvp, &r, start, false);
+        detail.number = Some(r.value);
+        let threshold = if from_ra { 8.0 } else { 3.0 };
+        Some(r.value > threshold)
+    } else if let Some(l) = level {
+        detail.level = Some(l);
+        Some(true)
+    } else {
+        raised_word.then_some(true)
+    };
+    if let (Some(raised), false) = (raised, term_here) {
+        let ctx = doc.engine.context(start, pend, Target::Finding, true);
+        let assertion = match (raised, ctx.assertion) {
+            (true, a) => a,
+            (false, Assertion::Present) => Assertion::Absent,
+            (false, a) => a,
+        };
+        out.findings.push(Finding {
+            concept: FindingConcept::RaisedJvp,
+            assertion,
+            experiencer: ctx.experiencer,
+            temporality: ctx.temporality,
+            text: doc.text[start..pend].to_string(),
+            span: doc.index.span(start, pend),
+            detail,
+            cues: ctx.cues,
+            section: doc.section_of(start),
+            episode: doc.episode_of(start),
+        });
+    }
+}
+
+fn intake_output(doc: &Doc, out: &mut Output, start: usize, end: usize) {
+    let Some(p) = parse_at(doc, Rule::io_value, end) else {
+        return;
+    };
+    let pend = end + p.as_span().end();
+    let Some(inner) = p.into_inner().next() else {
+        return;
+    };
+    let mut readings: Vec<Reading> = Vec::new();
+    for part in inner.into_inner() {
+        match part.as_rule() {
+            Rule::reading => {
+                if let Some(r) = reading_of(part, end) {
+                    readings.push(r);
+                }
+            }
+            Rule::unit => {
+                if let Some(r) = readings.last_mut() {
+                    r.unit_text = Some(part.as_str().to_string());
+                }
+            }
+            _ => {}
+        }
+    }
+    let [inp, outp] = readings.as_slice() else {
+        return;
+    };
+    let unit_of =
+        |r: &Reading, other: &Reading| r.unit_text.clone().or_else(|| other.unit_text.clone());
+    let to_ml = |r: &Reading, u: Option<String>| -> Option<f64> {
+        let code = u
+            .as_deref()
+            .and_then(units::ucum)
+            .unwrap_or_else(|| infer_unit(doc, MeasureConcept::FluidBalance, r.value, false));
+        units::normalize(MeasureConcept::FluidBalance, r.value, code, false).map(|(v, _)| v)
+    };
+    let (Some(i_ml), Some(o_ml)) = (
+        to_ml(inp, unit_of(inp, outp)),
+        to_ml(outp, unit_of(outp, inp)),
+    ) else {
+        return;
+    };
+    let net = Reading {
+        value: i_ml - o_ml,
+        start,
+        end: pend,
+        unit_text: Some("mL".into()),
+        ..Reading::default()
+    };
+    let written = inp.unit_text.is_some() || outp.unit_text.is_some();
+    push(doc, out, MeasureConcept::FluidBalance, &net, start, false);
+    if let Some(m) = out.measurements.last_mut() {
+        m.unit_inferred = !written;
+    }
+    // The output side is a urine output when the writer does not say otherwise (common
+    // practice, no source: ward I/O charts record urine as the output).
+    let uo = Reading {
+        value: o_ml,
+        start: outp.start,
+        end: outp.end,
+        unit_text: Some("mL".into()),
+        ..Reading::default()
+    };
+    push(
+        doc,
+        out,
+        MeasureConcept::UrineOutput,
+        &uo,
+        outp.start,
+        false,
+    );
+    if let Some(m) = out.measurements.last_mut() {
+        m.unit_inferred = !written;
+    }
+}
+
+fn fluid_balance(doc: &Doc, out: &mut Output, start: usize, end: usize) {
+    let Some(p) = parse_at(doc, Rule::fb_value, end) else {
+        return;
+    };
+    let pend = end + p.as_span().end();
+    let mut sign = 1.0;
+    let mut even = false;
+    for c in p.clone().into_inner() {
+        match c.as_rule() {
+            Rule::fb_even => even = true,
+            Rule::fb_word if c.as_str().to_ascii_lowercase().starts_with("neg") => sign = -1.0,
+            Rule::sign if c.as_str() != "+" => sign = -1.0,
+            _ => {}
+        }
+    }
+    if even {
+        let r = Reading {
+            value: 0.0,
+            start,
+            end: pend,
+            unit_text: Some("mL".into()),
+            ..Reading::default()
+        };
+        push(doc, out, MeasureConcept::FluidBalance, &r, start, false);
+        return;
+    }
+    let mut main: Option<Reading> = None;
+    let mut rest: Vec<Reading> = Vec::new();
+    for (i, r) in simple_readings(p, end).into_iter().enumerate() {
+        if i == 0 {
+            main = Some(r);
+        } else {
+            rest.push(r);
+        }
+    }
+    let Some(mut m) = main else { return };
+    m.value *= sign;
+    push(doc, out, MeasureConcept::FluidBalance, &m, start, false);
+    for r in rest {
+        push(doc, out, MeasureConcept::FluidBalance, &r, r.start, false);
+    }
+}
+
+fn nyha(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
+    let Some(p) = parse_at(doc, Rule::nyha_value, end) else {
+        return;
+    };
+    let pend = end + p.as_span().end();
+    let classes: Vec<u8> = p
+        .into_inner()
+        .filter(|c| c.as_rule() == Rule::nyha_num)
+        .filter_map(|c| nyha_class(c.as_str()))
+        .collect();
+    let Some(&class) = classes.iter().max() else {
+        return;
+    };
+    // `class 2` alone is NYHA only where NYHA or heart failure is in the same line.
+    if label == Label::NyhaWeak {
+        let line = &doc.text[doc.line_at(start)].to_ascii_lowercase();
+        if !(line.contains("nyha")
+            || line.contains("functional")
+            || line.contains("hf")
+            || line.contains("heart failure"))
+        {
+            return;
+        }
+    }
+    let roman = ["I", "II", "III", "IV"][(class - 1) as usize];
+    let ctx = doc.engine.context(start, pend, Target::Statement, false);
+    out.covered.push((start, pend));
+    out.statements.push(Statement {
+        kind: StatementKind::Nyha,
+        value: roman.to_string(),
+        assertion: ctx.assertion,
+        // A baseline class is still the patient's class ("NYHA III at baseline").
+        temporality: crate::model::Temporality::Current,
+        experiencer: ctx.experiencer,
+        text: doc.text[start..pend].to_string(),
+        span: doc.index.span(start, pend),
+        section: doc.section_of(start),
+        episode: doc.episode_of(start),
+    });
+}
+
+fn nyha_class(s: &str) -> Option<u8> {
+    let s = s.to_ascii_lowercase();
+    let s = s.trim_end_matches(['a', 'b']);
+    Some(match s {
+        "i" | "1" | "one" => 1,
+        "ii" | "2" | "two" => 2,
+        "iii" | "3" | "three" => 3,
+        "iv" | "4" | "four" => 4,
+        _ => return None,
+    })
+}
+
+fn push_finding(
+    doc: &Doc,
+    out: &mut Output,
+    concept: FindingConcept,
+    present: bool,
+    start: usize,
+    end: usize,
+    detail: FindingDetail,
+) {
+    let ctx = doc.engine.context(start, end, Target::Finding, true);
+    let assertion = match (present, ctx.assertion) {
+        (true, a) => a,
+        (false, Assertion::Present) => Assertion::Absent,
+        (false, a) => a,
+    };
+    out.covered.push((start, end));
+    out.findings.push(Finding {
+        concept,
+        assertion,
+        experiencer: ctx.experiencer,
+        temporality: ctx.temporality,
+        text: doc.text[start..end].to_string(),
+        span: doc.index.span(start, end),
+        detail,
+        cues: ctx.cues,
+        section: doc.section_of(start),
+        episode: doc.episode_of(start),
+    });
+}
+
+/// Capillary refill: 2 s or more is prolonged, under 2 s is normal (the bedside
+/// threshold used for the cold profile: Nohria, Stevenson et al. 2003 use "cool
+/// extremities"; the 2-second refill threshold is common practice, no source).
+fn capillary_refill(doc: &Doc, out: &mut Output, start: usize, end: usize) {
+    let Some(p) = parse_at(doc, Rule::crt_value, end) else {
+        return;
+    };
+    let pend = end + p.as_span().end();
+    let overlaps_term = doc.hits.iter().any(|h| {
+        matches!(h.kind, Kind::Finding(FindingConcept::ProlongedCapRefill, _))
+            && h.start < pend
+            && start < h.end
+    });
+    if overlaps_term {
+        return;
+    }
+    let mut worst: Option<(f64, Option<Qualifier>)> = None;
+    let mut word = None;
+    for c in p.into_inner() {
+        match c.as_rule() {
+            Rule::crt_secs => {
+                let mut q = None;
+                let mut v = None;
+                for part in c.into_inner() {
+                    match part.as_rule() {
+                        Rule::comparator => q = qualifier_of(part),
+                        Rule::number => v = parse_number(part.as_str()),
+                        _ => {}
+                    }
+                }
+                if let Some(v) = v {
+                    if worst.map_or(true, |(w, _)| v > w) {
+                        worst = Some((v, q));
+                    }
+                }
+            }
+            Rule::crt_word => word = Some(c.as_str().to_ascii_lowercase()),
+            _ => {}
+        }
+    }
+    let (prolonged, number) = match (worst, word) {
+        (Some((v, q)), _) => {
+            if v > 10.0 {
+                return;
+            }
+            let prolonged = match q {
+                Some(Qualifier::UpperBound) => false,
+                Some(Qualifier::LowerBound) => v >= 2.0,
+                _ => v >= 2.0,
+            };
+            // `CRT 2 s` exactly, or `<3 s`: read as written.
+            let prolonged = prolonged && !(q == Some(Qualifier::UpperBound));
+            (prolonged, Some(v))
+        }
+        (None, Some(w)) => (
+            matches!(w.as_str(), "prolonged" | "delayed" | "sluggish" | "slow"),
+            None,
+        ),
+        (None, None) => return,
+    };
+    let detail = FindingDetail {
+        number,
+        ..FindingDetail::default()
+    };
+    push_finding(
+        doc,
+        out,
+        FindingConcept::ProlongedCapRefill,
+        prolonged,
+        start,
+        pend,
+        detail,
+    );
+}
+
+/// GCS below 15 or an abbreviated mental test score below 8 documents altered mentation
+/// (GCS: Teasdale & Jennett, Lancet 1974, 15 is fully alert; AMTS: Hodkinson, Age Ageing
+/// 1972, below 8 of 10 suggests impairment). The scores themselves are not in the
+/// contract's concept list and are not measurements.
+fn scored_mentation(
+    doc: &Doc,
+    out: &mut Output,
+    rule: Rule,
+    normal_from: f64,
+    start: usize,
+    end: usize,
+) {
+    let Some(p) = parse_at(doc, rule, end) else {
+        return;
+    };
+    let pend = end + p.as_span().end();
+    let Some(v) = p
+        .into_inner()
+        .find(|c| c.as_rule() == Rule::number)
+        .and_then(|n| parse_number(n.as_str()))
+    else {
+        return;
+    };
+    let max = if rule == Rule::gcs_value { 15.0 } else { 10.0 };
+    if v > max || v < 3.0_f64.min(max) && rule == Rule::gcs_value {
+        return;
+    }
+    let detail = FindingDetail {
+        number: Some(v),
+        ..FindingDetail::default()
+    };
+    push_finding(
+        doc,
+        out,
+        FindingConcept::AlteredMentation,
+        v < normal_from,
+        start,
+        pend,
+        detail,
+    );
+}
