@@ -33,8 +33,12 @@ pub fn find(text: &str, index: &LineIndex, dates: &[FoundDate]) -> Vec<Episode> 
         let after =
             text[d.end..line.end].trim_start_matches([')', ']', ' ', '\t', ':', '-', '–', ',']);
         // A clock time may follow the date.
-        let after_time = after
-            .trim_start_matches(|c: char| c.is_ascii_digit() || c == ':' || c == '.' || c == 'h');
+        let after_time = match find_time(after) {
+            Some((0, _)) => after
+                .trim_start_matches(|c: char| c.is_ascii_digit() || c == ':' || c == '.')
+                .trim_start_matches(['h', ' ']),
+            _ => after,
+        };
         let first = after_time.trim_start().chars().next();
         let entry = match first {
             None => true,
