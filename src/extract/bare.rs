@@ -6,10 +6,9 @@ use std::sync::OnceLock;
 
 use regex::Regex;
 
-use super::measure::{parse_at, push, simple_readings, Output, Reading};
+use super::measure::{push, Output, Reading};
 use super::numbers::parse_number;
 use super::Doc;
-use crate::grammar::Rule;
 use crate::model::MeasureConcept;
 
 fn re(cell: &'static OnceLock<Regex>, pat: &str) -> &'static Regex {
@@ -83,39 +82,118 @@ fn weights(doc: &Doc, out: &mut Output) {
     static RE: OnceLock<Regex> = OnceLock::new();
     let r = re(
         &RE,
-        r"(?i)\b(\d{2,3}(?:\.\d{1,2})?)\s?(kgs?|kilos|lbs?|pounds)\b",
+        r"(?i)\b(\d{2,3}(?:\.\d{1,2})?)\s?(kgs?|kilos|lbs?|pounds)\b|\b(\d{1,2})\s?(?:st|stone)\b",
     );
     for c in r.captures_iter(doc.text) {
         let m = c.get(0).expect("match");
-        let num = c.get(1).expect("group");
+        let Some(num) = c.get(1).or(c.get(3)) else {
+            continue;
+        };
         if out.is_covered(m.start(), m.end()) || preceded_by_change(doc, m.start()) {
             continue;
         }
-        let after = &doc.text[m.end()..(m.end() + 12).min(doc.text.len())];
-        let after = after.get(..).unwrap_or("");
+        let after: String = doc.text[m.end()..]
+            .chars()
+            .take(12)
+            .collect::<String>()
+            .to_ascii_lowercase();
+        let after_word = after.trim_start();
         if after.starts_with('/')
-            || after
-                .trim_start()
-                .to_ascii_lowercase()
-                .starts_with("weight loss")
-            || after.trim_start().to_ascii_lowercase().starts_with("loss")
-            || after.trim_start().to_ascii_lowercase().starts_with("gain")
+            || after_word.starts_with("weight loss")
+            || after_word.starts_with("loss")
+            || after_word.starts_with("gain")
         {
             continue;
         }
         let Some(v) = parse_number(num.as_str()) else {
             continue;
         };
-        if !(20.0..=400.0).contains(&v) {
+        if c.get(1).is_some() && !(20.0..=400.0).contains(&v) {
             continue;
         }
-        // Reuse the weight grammar from the number on, for asides and chains.
-        if let Some(p) = parse_at(doc, Rule::weight_value, num.start()) {
-            let rs = simple_readings(p, num.start());
-            for (i, rd) in rs.iter().enumerate() {
-                let s = if i == 0 { num.start() } else { rd.start };
-                push(doc, out, MeasureConcept::Weight, rd, s, false);
+        // Reuse the weight grammar from the number on, for asides, chains and stones.
+        super::measure::weight(
+            doc,
+            out,
+            super::lexicon::Label::Weight,
+            num.start(),
+            num.start(),
+        );
+    }
+    dated_weight_lists(doc, out);
+}
+
+/// `log: 11/02 162.0, 11/03 163.4, 11/04 165.2`: dated numbers on a line about weight.
+fn dated_weight_lists(doc: &Doc, out: &mut Output) {
+    static ITEM: OnceLock<Regex> = OnceLock::new();
+    let item = re(
+        &ITEM,
+        r"(?i)\b(\d{1,2}[/.]\d{1,2}(?:[/.]\d{2,4})?)\s*[:\-–]?\s*(\d{2,3}(?:\.\d{1,2})?)\b(?:\s?(kgs?|lbs?))?",
+    );
+    for line_no in 0..doc.index.line_count() {
+        let range = doc.index.line_range(line_no);
+        let line = &doc.text[range.clone()];
+        let lower = line.to_ascii_lowercase();
+        if !["weigh", "wt", "log", "scales", "kg", "lb"]
+            .iter()
+            .any(|w| lower.contains(w))
+        {
+            continue;
+        }
+        let items: Vec<_> = item
+            .captures_iter(line)
+            .filter(|c| {
+                let at = range.start + c.get(1).map(|m| m.start()).unwrap_or(0);
+                doc.dates.iter().any(|d| d.start == at)
+            })
+            .collect();
+        if items.len() < 2 {
+            continue;
+        }
+        let line_unit = items
+            .iter()
+            .find_map(|c| c.get(3).map(|u| u.as_str().to_string()))
+            .or_else(|| {
+                if lower.contains("lb") {
+                    Some("lb".to_string())
+                } else if lower.contains("kg") {
+                    Some("kg".to_string())
+                } else {
+                    None
+                }
+            });
+        for c in items {
+            let date_at = range.start + c.get(1).expect("group").start();
+            let num = c.get(2).expect("group");
+            let (s, e) = (
+                range.start + num.start(),
+                range.start + c.get(0).expect("m").end(),
+            );
+            if out.is_covered(s, e) {
+                continue;
             }
+            let Some(v) = parse_number(num.as_str()) else {
+                continue;
+            };
+            if !(20.0..=400.0).contains(&v) {
+                continue;
+            }
+            let rd = Reading {
+                value: v,
+                start: s,
+                end: e,
+                unit_text: c
+                    .get(3)
+                    .map(|u| u.as_str().to_string())
+                    .or(line_unit.clone()),
+                date: doc
+                    .dates
+                    .iter()
+                    .find(|d| d.start == date_at)
+                    .map(|d| d.iso.clone()),
+                ..Reading::default()
+            };
+            push(doc, out, MeasureConcept::Weight, &rd, date_at, false);
         }
     }
 }

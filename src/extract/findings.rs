@@ -202,6 +202,18 @@ pub fn findings(doc: &Doc, out: &mut Output) {
         let present = match polarity {
             Polarity::Unassessable => continue,
             Polarity::Present => true,
+            // "drowsy but orientated", "drowsy, oriented x3": the impairment is the finding.
+            Polarity::Absent
+                if concept == FindingConcept::AlteredMentation
+                    && terms.iter().any(|&(s, e, c, p)| {
+                        c == concept
+                            && p == Polarity::Present
+                            && doc.line_at(s) == doc.line_at(start)
+                            && (s.abs_diff(end) < 40 || e.abs_diff(start) < 40)
+                    }) =>
+            {
+                continue
+            }
             Polarity::Absent => false,
             Polarity::Added => {
                 concept = added_concept(doc, start);

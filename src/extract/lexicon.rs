@@ -414,4 +414,26 @@ mod tests {
             .collect();
         assert_eq!(labels, vec!["HR"]);
     }
+
+    #[test]
+    fn case_sensitive_terms_match_only_as_written() {
+        // Every `cs` term carries a capital, or matching "as written" would be pointless.
+        let parsed = parse(LEXICON).expect("lexicon parses");
+        for (term, cs) in &parsed {
+            if *cs {
+                assert!(
+                    term.text.chars().any(|c| c.is_ascii_uppercase()),
+                    "{}",
+                    term.text
+                );
+            }
+        }
+        let text = "T 36.8, t 4";
+        let labels: Vec<_> = scan(text)
+            .into_iter()
+            .filter(|h| matches!(h.kind, Kind::Label(Label::TempWeak)))
+            .map(|h| &text[h.start..h.end])
+            .collect();
+        assert_eq!(labels, vec!["T"]);
+    }
 }

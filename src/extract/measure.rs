@@ -53,17 +53,28 @@ pub struct Reading {
     pub date: Option<String>,
 }
 
-/// Run `rule` on the text from `start` to the end of its line.
+/// Run `rule` on the text from `start` to the end of its line. When the rest of the line
+/// holds no value (`creatinine` at the end of a wrapped line), the next line is read too;
+/// the grammar sees line breaks as spaces there.
 pub fn parse_at<'t>(doc: &Doc<'t>, rule: Rule, start: usize) -> Option<Pair<'t, Rule>> {
     let line = doc.line_at(start);
-    let mut end = line.end.min(start + MAX_VALUE_BYTES);
-    while !doc.text.is_char_boundary(end) {
+    let mut line_end = line.end;
+    let rest = doc.text[start.min(line.end)..line.end].trim_matches([' ', '\t', ':', '-', '=']);
+    if rest.len() <= 24 && !rest.contains(|c: char| c.is_ascii_digit()) && line.end < doc.text.len()
+    {
+        let next = doc.line_at((line.end + 1).min(doc.text.len() - 1));
+        if next.start > line.end || next.end > line.end {
+            line_end = next.end.max(line.end);
+        }
+    }
+    let mut end = line_end.min(start + MAX_VALUE_BYTES);
+    while !doc.flat.is_char_boundary(end) {
         end -= 1;
     }
     if start >= end {
         return None;
     }
-    let slice = &doc.text[start..end];
+    let slice = &doc.flat[start..end];
     ValueParser::parse(rule, slice).ok()?.next()
 }
 
@@ -117,7 +128,7 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
                     out.push(r);
                 }
             }
-            Rule::unit => {
+            Rule::unit | Rule::ef_pct => {
                 if let Some(r) = out.first_mut() {
                     if r.unit_text.is_none() {
                         r.unit_text = Some(c.as_str().to_string());
@@ -143,7 +154,7 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
                     }
                 }
             }
-            Rule::chain => {
+            Rule::chain | Rule::comma_item | Rule::step => {
                 if let Some(r) = item_reading(c, base) {
                     out.push(r);
                 }
@@ -167,10 +178,24 @@ fn item_reading(p: Pair<Rule>, base: usize) -> Option<Reading> {
     let mut r: Option<Reading> = None;
     let mut target = false;
     let mut when = None;
+    let whole = p.as_str().to_ascii_lowercase();
+    let whole_raw = p.as_str().to_string();
+    let base_start = base + p.as_span().start();
+    // A reference range or a goal in brackets is not a value of the patient's.
+    const NOT_A_VALUE: &[&str] = &[
+        "ref", "range", "normal", "uln", "lln", "target", "goal", "aim", "dry", "ideal", "limit",
+    ];
+    if whole
+        .split(|c: char| !c.is_ascii_alphabetic())
+        .any(|w| NOT_A_VALUE.contains(&w))
+    {
+        target = true;
+    }
     for c in p.into_inner() {
         match c.as_rule() {
             Rule::target_word => target = true,
-            Rule::when => when = time_ref(c.as_str()).or(when),
+            Rule::when | Rule::aside_word if r.is_none() => when = time_ref(c.as_str()).or(when),
+            Rule::when | Rule::trailing_when => when = time_ref(c.as_str()).or(when),
             Rule::reading => r = reading_of(c, base),
             Rule::unit => {
                 if let Some(r) = r.as_mut() {
@@ -182,9 +207,20 @@ fn item_reading(p: Pair<Rule>, base: usize) -> Option<Reading> {
         }
     }
     let mut r = r?;
+    // `(echo 11/2025)`, `(2024)`: a date or a year, not a value.
+    let after_num = p_text_after(&whole_raw, r.end - base_start);
+    if after_num.starts_with(['/', '.']) && after_num[1..].starts_with(|c: char| c.is_ascii_digit())
+        || (r.unit_text.is_none() && r.value.fract() == 0.0 && (1900.0..=2100.0).contains(&r.value))
+    {
+        return None;
+    }
     r.target = target;
     r.time_ref = when;
     Some(r)
+}
+
+fn p_text_after(s: &str, at: usize) -> &str {
+    s.get(at..).unwrap_or("")
 }
 
 /// The unit a value written without one is read in: the document's own habits first, then
@@ -273,6 +309,8 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
         "hold if",
         "omit if",
         "stop if",
+        "recheck",
+        "re-check",
     ];
     WORDS.iter().any(|w| before.contains(w))
 }
@@ -357,7 +395,25 @@ fn lab_concept(l: Label) -> Option<(MeasureConcept, bool)> {
 
 /// Physiological ranges a weak label's value must fall in to be read at all (`P 88` is a
 /// pulse, `P 2` is not). Common practice, no source.
-fn weak_ok(label: Label, r: &Reading) -> bool {
+fn weak_ok(doc: &Doc, label: Label, r: &Reading) -> bool {
+    // A number run on into a word (`67M`, `2h`) or followed by a time span (`1 h`,
+    // `3 days`) is an age, a size or an interval, not this value.
+    let after = &doc.text[r.end.min(doc.text.len())..];
+    if r.unit_text.is_none() && after.starts_with(|c: char| c.is_alphabetic()) {
+        return false;
+    }
+    if r.unit_text.is_none() && !matches!(label, Label::Uo | Label::Fb | Label::Io) {
+        static SPAN: std::sync::OnceLock<regex::Regex> = std::sync::OnceLock::new();
+        let re = SPAN.get_or_init(|| {
+            regex::Regex::new(
+                r"^\s?(?i:h|hr|hrs|hours?|mins?|minutes?|days?|wks?|weeks?|months?|years?|yrs?)\b",
+            )
+            .expect("valid regex")
+        });
+        if re.is_match(after) {
+            return false;
+        }
+    }
     match label {
         Label::HrWeak | Label::HrRhythm => (25.0..=250.0).contains(&r.value),
         Label::TempWeak => (30.0..=45.0).contains(&r.value) || (86.0..=113.0).contains(&r.value),
@@ -383,7 +439,7 @@ fn read_label(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
         if let Some(p) = parse_at(doc, rule, end) {
             let rs = simple_readings(p, end);
             for (i, r) in rs.iter().enumerate() {
-                if i == 0 && !weak_ok(label, r) {
+                if i == 0 && !weak_ok(doc, label, r) {
                     return;
                 }
                 push(
@@ -533,7 +589,7 @@ fn spo2(doc: &Doc, out: &mut Output, start: usize, end: usize) {
     }
 }
 
-fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
+pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
     // A series (`Weights: 01/06 89.0, 02/06 87.4` or `89.0 -> 87.4 -> 86.1 kg`) first.
     if let Some(p) = parse_at(doc, Rule::series_value, end) {
         let mut items = Vec::new();
@@ -716,9 +772,7 @@ fn height(doc: &Doc, out: &mut Output, start: usize, end: usize) {
 /// the right atrium). A level (`to the earlobes`) documents a raised JVP.
 fn jvp(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
     let Some(p) = parse_at(doc, Rule::jvp_value, end) else {
-        if label == Label::Jvd {
-            // `JVD` alone is a finding term the lexicon also knows; nothing to read here.
-        }
+        jvp_words(doc, out, label, start, end);
         return;
     };
     let pend = end + p.as_span().end();
@@ -807,12 +861,70 @@ fn jvp(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
     }
 }
 
+/// `JVP was not raised`, `JVP: normal`, `JVP is flat`, `JVP - not seen`: the words after
+/// the label that state the JVP without a number.
+fn jvp_words(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
+    static WORDS: std::sync::OnceLock<regex::Regex> = std::sync::OnceLock::new();
+    let re = WORDS.get_or_init(|| {
+        regex::Regex::new(
+            r"^(?i)\s*[:\-–=]?\s*(?:(?:was|is|were|appears?|looks?|remains?|now|today)\s+)*(?:(not|non|no longer)[- ]?(raised|elevated|distended|up|visible|seen|assessable)|(normal|flat|low|nr\b|n/r|unremarkable|down|within normal limits)|(raised|elevated|distended|up|high|visible))",
+        )
+        .expect("valid regex")
+    });
+    let line = doc.line_at(end);
+    let Some(c) = re.captures(&doc.text[end..line.end]) else {
+        return;
+    };
+    let m = c.get(0).expect("match");
+    let pend = end + m.end();
+    let covered_by_term = doc.hits.iter().any(|h| {
+        matches!(h.kind, Kind::Finding(FindingConcept::RaisedJvp, _))
+            && h.start < pend
+            && start < h.end
+    });
+    if covered_by_term {
+        return;
+    }
+    let present = if let Some(w) = c.get(2) {
+        let w = w.as_str().to_ascii_lowercase();
+        if matches!(w.as_str(), "visible" | "seen" | "assessable") {
+            // "JVP not seen": neither raised nor normal, so no finding.
+            return;
+        }
+        false
+    } else if c.get(3).is_some() {
+        false
+    } else {
+        let w = c
+            .get(4)
+            .map(|w| w.as_str().to_ascii_lowercase())
+            .unwrap_or_default();
+        if w == "visible" {
+            return;
+        }
+        true
+    };
+    let _ = label;
+    push_finding(
+        doc,
+        out,
+        FindingConcept::RaisedJvp,
+        present,
+        start,
+        pend,
+        FindingDetail::default(),
+    );
+}
+
 fn intake_output(doc: &Doc, out: &mut Output, start: usize, end: usize) {
     let Some(p) = parse_at(doc, Rule::io_value, end) else {
         return;
     };
     let pend = end + p.as_span().end();
-    let Some(inner) = p.into_inner().next() else {
+    let Some(inner) = p
+        .into_inner()
+        .find(|c| matches!(c.as_rule(), Rule::io_pair | Rule::io_inout))
+    else {
         return;
     };
     let mut readings: Vec<Reading> = Vec::new();

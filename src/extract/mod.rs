@@ -27,6 +27,9 @@ use crate::text::{sections, segment::Sentences};
 /// The shared, read-only view of one document that the extraction passes work from.
 pub struct Doc<'a> {
     pub text: &'a str,
+    /// The text with line breaks and tabs as spaces (same byte offsets): what the lexicon
+    /// scan and the grammar read, so that a phrase wrapped over two lines still matches.
+    pub flat: &'a str,
     pub index: &'a LineIndex<'a>,
     pub sections: &'a [Section],
     pub hits: &'a [lexicon::Hit],
@@ -105,7 +108,8 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
     let index = LineIndex::new(text);
     let sections = sections::find(text, &index);
     let sentences = Sentences::new(text);
-    let hits = lexicon::scan(text);
+    let flat = flatten(text);
+    let hits = lexicon::scan(&flat);
     let us_units = detect_us_units(text, opts.unit_system);
     let order = dates::resolve_order(text, opts.date_order, us_units);
     let default_year = dates::find_dates(text, order, None)
@@ -117,6 +121,7 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
     let engine = ContextEngine::new(text, &index, &sentences, &sections, &hits);
     let doc = Doc {
         text,
+        flat: &flat,
         index: &index,
         sections: &sections,
         hits: &hits,
@@ -149,6 +154,19 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
         medications: Vec::new(),
         note_date,
     }
+}
+
+/// Line breaks and tabs as spaces, byte for byte.
+pub fn flatten(text: &str) -> String {
+    text.chars()
+        .map(|c| {
+            if matches!(c, '\r' | '\n' | '\t') {
+                ' '
+            } else {
+                c
+            }
+        })
+        .collect()
 }
 
 /// Drop measurements that repeat another of the same concept over the same text (a label
