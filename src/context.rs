@@ -205,7 +205,8 @@ impl<'a> ContextEngine<'a> {
                 Family::Possibility if target != Target::Measurement => {
                     let reach = if q_is {
                         // "?S3", "? fluid overload" forward; "LVF?" backward, adjacent only.
-                        (before && words <= 1 && gap_b - gap_a <= 2) || (after && gap_b == gap_a)
+                        // "?soft S3": one describing word may sit between.
+                        (before && words <= 1 && gap_b - gap_a <= 12) || (after && gap_b == gap_a)
                     } else if before {
                         words <= 5
                     } else {

@@ -60,11 +60,24 @@ pub fn parse_at<'t>(doc: &Doc<'t>, rule: Rule, start: usize) -> Option<Pair<'t, 
     let line = doc.line_at(start);
     let mut line_end = line.end;
     let rest = doc.text[start.min(line.end)..line.end].trim_matches([' ', '\t', ':', '-', '=']);
-    if rest.len() <= 24 && !rest.contains(|c: char| c.is_ascii_digit()) && line.end < doc.text.len()
-    {
-        let next = doc.line_at((line.end + 1).min(doc.text.len() - 1));
-        if next.start > line.end || next.end > line.end {
-            line_end = next.end.max(line.end);
+    let line_no = doc.index.line_of(start);
+    if line_no + 1 < doc.index.line_count() {
+        let next = doc.index.line_range(line_no + 1);
+        let next_text = doc.text[next.clone()].trim_start();
+        let next_at = next.end - next_text.len();
+        let this_line = &doc.text[line.clone()];
+        let header_like = this_line.contains("  ") || this_line.contains(['\t', '|']);
+        let next_is_dated = doc.dates.iter().any(|d| d.start == next_at);
+        // A value wrapped onto the next line, or an aside that starts it.
+        let wrapped = rest.len() <= 60 && !rest.contains(|c: char| c.is_ascii_digit());
+        // A numbered list item ("4. Repeat VBG") starts a new point.
+        let numbered = next_text.split_once(['.', ')']).is_some_and(|(n, r)| {
+            (1..=2).contains(&n.len())
+                && n.bytes().all(|b| b.is_ascii_digit())
+                && r.starts_with(' ')
+        });
+        if !header_like && !next_is_dated && !numbered && (wrapped || next_text.starts_with('(')) {
+            line_end = next.end;
         }
     }
     let mut end = line_end.min(start + MAX_VALUE_BYTES);
@@ -185,9 +198,33 @@ fn item_reading(p: Pair<Rule>, base: usize) -> Option<Reading> {
     const NOT_A_VALUE: &[&str] = &[
         "ref", "range", "normal", "uln", "lln", "target", "goal", "aim", "dry", "ideal", "limit",
     ];
-    if whole
+    // A change (`(up 0.4)`, `(↓ 1.2)`) is not a value either, unless it says where from.
+    const CHANGE: &[&str] = &[
+        "up",
+        "down",
+        "gain",
+        "gained",
+        "loss",
+        "lost",
+        "change",
+        "diff",
+        "difference",
+        "rise",
+        "fall",
+        "drop",
+        "increase",
+        "decrease",
+        "by",
+    ];
+    let words: Vec<&str> = whole
         .split(|c: char| !c.is_ascii_alphabetic())
-        .any(|w| NOT_A_VALUE.contains(&w))
+        .filter(|w| !w.is_empty())
+        .collect();
+    if words.iter().any(|w| NOT_A_VALUE.contains(w))
+        || (words.iter().any(|w| CHANGE.contains(w)) && !words.contains(&"from"))
+        || whole
+            .trim_start_matches(['(', ' '])
+            .starts_with(['↑', '↓', '+'])
     {
         target = true;
     }
@@ -400,6 +437,10 @@ fn weak_ok(doc: &Doc, label: Label, r: &Reading) -> bool {
     // `3 days`) is an age, a size or an interval, not this value.
     let after = &doc.text[r.end.min(doc.text.len())..];
     if r.unit_text.is_none() && after.starts_with(|c: char| c.is_alphabetic()) {
+        return false;
+    }
+    // `lactate 22:00`: a clock time.
+    if after.starts_with(':') && after[1..].starts_with(|c: char| c.is_ascii_digit()) {
         return false;
     }
     if r.unit_text.is_none() && !matches!(label, Label::Uo | Label::Fb | Label::Io) {

@@ -34,6 +34,14 @@ const TITLES: &[(&str, SectionKind)] = {
         ("hpi", History),
         ("hopc", History),
         ("history", History),
+        ("symptoms", Subjective),
+        ("current symptoms", Subjective),
+        ("symptom review", Subjective),
+        ("today", Subjective),
+        ("overnight", Subjective),
+        ("events", Subjective),
+        ("24h events", Subjective),
+        ("overnight events", Subjective),
         ("history of presenting complaint", History),
         ("history of present illness", History),
         ("history of presenting illness", History),
@@ -204,6 +212,23 @@ pub fn find(text: &str, index: &LineIndex) -> Vec<Section> {
                 }
             }
         }
+        // Any other short title with a colon ends the section before it: a "Symptoms:"
+        // after "Background:" is no longer background.
+        if let Some((at, _)) = delim {
+            let title = body[..at].trim();
+            let looks_like_title = body.as_bytes()[at] == b':'
+                && (3..=32).contains(&title.len())
+                && title.starts_with(|c: char| c.is_ascii_uppercase())
+                && title.split_whitespace().count() <= 4
+                && title.chars().all(|c| {
+                    c.is_ascii_alphabetic() || matches!(c, ' ' | '&' | '\'' | '-' | '/' | '(' | ')')
+                });
+            if looks_like_title {
+                // A boundary only: it ends the section before and is not reported.
+                heads.push((SectionKind::Other, start, start));
+                continue;
+            }
+        }
         // A title alone on its line.
         let alone = body.trim_end_matches([':', ' ', '\t']);
         if alone.len() <= 48 && alone.len() > 2 {
@@ -214,6 +239,9 @@ pub fn find(text: &str, index: &LineIndex) -> Vec<Section> {
     }
     let mut out = Vec::with_capacity(heads.len());
     for (i, (kind, start, header_end)) in heads.iter().enumerate() {
+        if header_end == start {
+            continue;
+        }
         let end = heads.get(i + 1).map(|h| h.1).unwrap_or(text.len());
         out.push(Section {
             kind: *kind,
