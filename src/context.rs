@@ -42,12 +42,27 @@ struct CueHit {
 }
 
 /// Decides the context of targets in one document.
+///
+/// Every lookup is a binary search over sorted positions, so the cost of a document is
+/// O(n log n) in its number of cues and targets however they are packed (a 20 MB line of
+/// stacked negations costs the same per item as a short note).
 pub struct ContextEngine<'a> {
     text: &'a str,
     index: &'a LineIndex<'a>,
     sentences: &'a Sentences,
     sections: &'a [Section],
-    cues: Vec<CueHit>,
+    /// Cues that reach forward, per family, sorted by position.
+    forward: Vec<(Family, Vec<CueHit>)>,
+    /// Cues that reach backward, per family, sorted by position.
+    backward: Vec<(Family, Vec<CueHit>)>,
+    /// Starts of termination terms ("but", "however").
+    terminators: Vec<(usize, usize)>,
+    /// Starts of "current" cues ("now", "today"), which end a historical scope.
+    currents: Vec<(usize, usize)>,
+    /// Starts of reporter cues ("wife reports").
+    reporters: Vec<(usize, usize)>,
+    /// Byte offsets of brackets.
+    brackets: Vec<usize>,
     /// Spans of all findings and statements, sorted, for list handling and nearest-target
     /// checks.
     targets: Vec<(usize, usize)>,
@@ -56,6 +71,18 @@ pub struct ContextEngine<'a> {
 const CONNECTORS: &[&str] = &[
     "or", "nor", "and", "&", "/", "+", "either", "any", "the", "of",
 ];
+
+/// How many of the nearest cues of one family are weighed for each target.
+const NEAREST: usize = 3;
+
+/// The longest gap, in bytes, that word counting walks; beyond it the gap is too wide for
+/// any word-limited cue (NegEx's window is five words).
+const MAX_WORD_GAP: usize = 600;
+
+fn any_in(sorted: &[(usize, usize)], a: usize, b: usize) -> bool {
+    let i = sorted.partition_point(|&(s, _)| s < a);
+    sorted.get(i).is_some_and(|&(_, e)| e <= b)
+}
 
 impl<'a> ContextEngine<'a> {
     pub fn new(
@@ -85,26 +112,76 @@ impl<'a> ContextEngine<'a> {
                 _ => {}
             }
         }
-        // A cue inside a finding or statement term ("JVP not raised") belongs to that term.
-        cues.retain(|c| {
-            !targets
-                .iter()
-                .any(|&(s, e)| s <= c.start && c.end <= e && (s, e) != (c.start, c.end))
-        });
         targets.sort();
+        // A cue inside a finding or statement term ("JVP not raised") belongs to that term.
+        let inside = |c: &CueHit| {
+            let i = targets.partition_point(|&(s, _)| s <= c.start);
+            targets[..i]
+                .iter()
+                .rev()
+                .take(4)
+                .any(|&(s, e)| s <= c.start && c.end <= e && (s, e) != (c.start, c.end))
+        };
+        cues.retain(|c| !inside(c));
+        cues.sort_by_key(|c| c.start);
+        let mut forward: Vec<(Family, Vec<CueHit>)> = Vec::new();
+        let mut backward: Vec<(Family, Vec<CueHit>)> = Vec::new();
+        let mut terminators = Vec::new();
+        let mut currents = Vec::new();
+        let mut reporters = Vec::new();
+        let add = |list: &mut Vec<(Family, Vec<CueHit>)>, f: Family, c: CueHit| match list
+            .iter_mut()
+            .find(|(g, _)| *g == f)
+        {
+            Some((_, v)) => v.push(c),
+            None => list.push((f, vec![c])),
+        };
+        for c in cues {
+            let Some(f) = c.family else {
+                terminators.push((c.start, c.end));
+                continue;
+            };
+            match f {
+                Family::Current => currents.push((c.start, c.end)),
+                Family::Reporter => reporters.push((c.start, c.end)),
+                _ => {}
+            }
+            if matches!(c.dir, Direction::Forward | Direction::Both) {
+                add(&mut forward, f, c);
+            }
+            if matches!(c.dir, Direction::Backward | Direction::Both) {
+                add(&mut backward, f, c);
+            }
+        }
+        let brackets = text
+            .bytes()
+            .enumerate()
+            .filter(|(_, b)| matches!(b, b'(' | b')' | b'['))
+            .map(|(i, _)| i)
+            .collect();
         ContextEngine {
             text,
             index,
             sentences,
             sections,
-            cues,
+            forward,
+            backward,
+            terminators,
+            currents,
+            reporters,
+            brackets,
             targets,
         }
     }
 
-    fn words(&self, a: usize, b: usize) -> usize {
+    /// Words between `a` and `b`, not counting connectors and words of other findings;
+    /// counting stops once it passes `limit`.
+    fn words(&self, a: usize, b: usize, limit: usize) -> usize {
         if a >= b {
             return 0;
+        }
+        if b - a > MAX_WORD_GAP {
+            return limit + 1;
         }
         let mut count = 0;
         let mut pos = a;
@@ -116,33 +193,34 @@ impl<'a> ContextEngine<'a> {
                 continue;
             }
             // Words that belong to another finding or statement do not count: lists.
-            let abs = wstart;
-            if self.targets.iter().any(|&(s, e)| s <= abs + 1 && abs < e) {
+            let i = self.targets.partition_point(|&(s, _)| s <= wstart + 1);
+            if i > 0 && wstart < self.targets[i - 1].1 {
                 continue;
             }
             count += 1;
+            if count > limit {
+                break;
+            }
         }
         count
     }
 
     fn brackets_between(&self, a: usize, b: usize) -> bool {
-        a < b && self.text[a..b].contains(['(', ')', '['])
+        let i = self.brackets.partition_point(|&p| p < a);
+        self.brackets.get(i).is_some_and(|&p| p < b)
     }
 
     fn terminated(&self, a: usize, b: usize, family: Family) -> bool {
-        self.cues.iter().any(|c| {
-            c.start >= a
-                && c.end <= b
-                && (c.family.is_none()
-                    || (family == Family::Historical && c.family == Some(Family::Current)))
-        })
+        any_in(&self.terminators, a, b)
+            || (family == Family::Historical && any_in(&self.currents, a, b))
     }
 
     fn nearest_target_before(&self, cue_start: usize, target_end: usize) -> bool {
-        !self
-            .targets
+        let i = self.targets.partition_point(|&(s, _)| s < target_end);
+        !self.targets[i..]
             .iter()
-            .any(|&(s, e)| s >= target_end && e <= cue_start)
+            .take_while(|&&(s, _)| s < cue_start)
+            .any(|&(_, e)| e <= cue_start)
     }
 
     fn cue(&self, c: &CueHit, family: &'static str) -> Cue {
@@ -151,6 +229,36 @@ impl<'a> ContextEngine<'a> {
             text: self.text[c.start..c.end].to_string(),
             span: self.index.span(c.start, c.end),
         }
+    }
+
+    /// The few nearest cues before `start` (reaching forward) and after `end` (reaching
+    /// backward) within `sentence`, nearest first.
+    fn nearby(
+        &self,
+        start: usize,
+        end: usize,
+        sentence: &std::ops::Range<usize>,
+    ) -> Vec<(Family, CueHit)> {
+        let mut out = Vec::new();
+        for (f, list) in &self.forward {
+            let i = list.partition_point(|c| c.end <= start);
+            for c in list[..i].iter().rev().take(NEAREST) {
+                if c.start >= sentence.start {
+                    out.push((*f, *c));
+                }
+            }
+        }
+        for (f, list) in &self.backward {
+            let i = list.partition_point(|c| c.start < end);
+            for c in list[i..].iter().take(NEAREST) {
+                if c.start < sentence.end {
+                    out.push((*f, *c));
+                }
+            }
+        }
+        // In text order, as the scope rules (a reporter after another person) expect.
+        out.sort_by_key(|(_, c)| c.start);
+        out
     }
 
     /// The context of a target at `start..end`. `quantified` says the finding carries its
@@ -166,19 +274,11 @@ impl<'a> ContextEngine<'a> {
         let mut other = None;
         let mut reporter_between = false;
 
-        for c in &self.cues {
-            let Some(family) = c.family else { continue };
-            if c.start < sentence.start || c.start >= sentence.end {
-                continue;
-            }
+        for (family, c) in self.nearby(start, end, &sentence) {
+            let c = &c;
             let before = c.end <= start;
             let after = c.start >= end;
             if !before && !after {
-                continue;
-            }
-            let forward_ok = before && matches!(c.dir, Direction::Forward | Direction::Both);
-            let backward_ok = after && matches!(c.dir, Direction::Backward | Direction::Both);
-            if !forward_ok && !backward_ok {
                 continue;
             }
             let (gap_a, gap_b) = if before {
@@ -189,7 +289,7 @@ impl<'a> ContextEngine<'a> {
             if self.brackets_between(gap_a, gap_b) || self.terminated(gap_a, gap_b, family) {
                 continue;
             }
-            let words = self.words(gap_a, gap_b);
+            let words = self.words(gap_a, gap_b, 6);
             let q_is = &self.text[c.start..c.end] == "?";
             match family {
                 Family::Negation if target != Target::Measurement => {
@@ -296,8 +396,6 @@ impl<'a> ContextEngine<'a> {
     }
 
     fn reporter_after(&self, a: usize, b: usize) -> bool {
-        self.cues
-            .iter()
-            .any(|c| c.family == Some(Family::Reporter) && c.start >= a && c.end <= b)
+        any_in(&self.reporters, a, b)
     }
 }

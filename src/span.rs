@@ -39,14 +39,62 @@ impl Span {
 pub struct LineIndex<'a> {
     text: &'a str,
     line_starts: Vec<usize>,
+    /// Every [`CHECKPOINT`] bytes: (byte offset on a char boundary, scalar values before
+    /// it, UTF-16 code units before it). Columns on very long lines then cost at most one
+    /// checkpoint's worth of counting, not the whole line.
+    checkpoints: Vec<(usize, usize, usize)>,
 }
+
+const CHECKPOINT: usize = 4096;
 
 impl<'a> LineIndex<'a> {
     pub fn new(text: &'a str) -> Self {
         let mut line_starts = Vec::with_capacity(text.len() / 40 + 1);
         line_starts.push(0);
         line_starts.extend(memchr_iter(b'\n', text.as_bytes()).map(|i| i + 1));
-        LineIndex { text, line_starts }
+        let mut checkpoints = Vec::with_capacity(text.len() / CHECKPOINT + 1);
+        let (mut chars, mut units, mut at) = (0usize, 0usize, 0usize);
+        checkpoints.push((0, 0, 0));
+        while at + CHECKPOINT < text.len() {
+            let mut next = at + CHECKPOINT;
+            while !text.is_char_boundary(next) {
+                next += 1;
+            }
+            for c in text[at..next].chars() {
+                chars += 1;
+                units += c.len_utf16();
+            }
+            at = next;
+            checkpoints.push((at, chars, units));
+        }
+        LineIndex {
+            text,
+            line_starts,
+            checkpoints,
+        }
+    }
+
+    /// Scalar values and UTF-16 code units before byte `offset` (a char boundary).
+    fn counts_before(&self, offset: usize) -> (usize, usize) {
+        let i = self.checkpoints.partition_point(|c| c.0 <= offset) - 1;
+        let (at, chars, units) = self.checkpoints[i];
+        let (mut c, mut u) = (chars, units);
+        for ch in self.text[at..offset].chars() {
+            c += 1;
+            u += ch.len_utf16();
+        }
+        (c, u)
+    }
+
+    /// Scalar values and UTF-16 code units between two char boundaries `a <= b`.
+    fn counts_between(&self, a: usize, b: usize) -> (usize, usize) {
+        if b - a <= CHECKPOINT {
+            let s = &self.text[a..b];
+            return (s.chars().count(), s.chars().map(char::len_utf16).sum());
+        }
+        let (ca, ua) = self.counts_before(a);
+        let (cb, ub) = self.counts_before(b);
+        (cb - ca, ub - ua)
     }
 
     pub fn text(&self) -> &'a str {
@@ -102,7 +150,7 @@ impl<'a> LineIndex<'a> {
         let offset = self.floor(offset);
         let line = self.line_of(offset);
         let start = self.line_starts[line];
-        let col = self.text[start..offset].chars().count();
+        let col = self.counts_between(start, offset).0;
         (line as u32 + 1, col as u32 + 1)
     }
 
@@ -111,10 +159,7 @@ impl<'a> LineIndex<'a> {
         let offset = self.floor(offset);
         let line = self.line_of(offset);
         let start = self.line_starts[line];
-        self.text[start..offset]
-            .chars()
-            .map(|c| c.len_utf16() as u32)
-            .sum()
+        self.counts_between(start, offset).1 as u32
     }
 
     /// Byte offset of a 0-based line and UTF-16 column, clamped to the line.
@@ -169,6 +214,17 @@ mod tests {
         assert_eq!(idx.line_range(0), 0..2);
         let deg = text.find('°').unwrap();
         assert_eq!(idx.position(deg + 2), (3, 2));
+    }
+
+    #[test]
+    fn columns_on_a_long_line_match_a_plain_count() {
+        let text = format!("{}µ°😀 end", "ab€".repeat(5000));
+        let idx = LineIndex::new(&text);
+        let at = text.find(" end").unwrap();
+        let plain = text[..at].chars().count() as u32 + 1;
+        assert_eq!(idx.position(at), (1, plain));
+        let units: u32 = text[..at].chars().map(|c| c.len_utf16() as u32).sum();
+        assert_eq!(idx.utf16_column(at), units);
     }
 
     #[test]

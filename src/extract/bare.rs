@@ -121,6 +121,72 @@ fn weights(doc: &Doc, out: &mut Output) {
         );
     }
     dated_weight_lists(doc, out);
+    weight_row_blocks(doc, out);
+}
+
+/// A header about weight followed by two or more rows that each hold only a date and a
+/// number: `Daily weights (kg, home scales):` then `  10/04  72.9`.
+fn weight_row_blocks(doc: &Doc, out: &mut Output) {
+    static ROW: OnceLock<Regex> = OnceLock::new();
+    let row_re = re(
+        &ROW,
+        r"^\s*(\d{1,2}[/.]\d{1,2}(?:[/.]\d{2,4})?)\s*[:\-–]?\s*(\d{2,3}(?:\.\d{1,2})?)\s*(kgs?|lbs?)?\s*$",
+    );
+    let lines = doc.index.line_count();
+    let mut n = 1;
+    while n < lines {
+        let header = doc.text[doc.index.line_range(n - 1)].to_ascii_lowercase();
+        let about_weight = ["weigh", "wt", "kg", "lb", "scales"]
+            .iter()
+            .any(|w| header.contains(w));
+        let mut end = n;
+        while end < lines && row_re.is_match(&doc.text[doc.index.line_range(end)]) {
+            end += 1;
+        }
+        if !about_weight || end - n < 2 {
+            n = end.max(n + 1);
+            continue;
+        }
+        let header_unit = if header.contains("lb") {
+            Some("lb")
+        } else if header.contains("kg") {
+            Some("kg")
+        } else {
+            None
+        };
+        for row in n..end {
+            let range = doc.index.line_range(row);
+            let Some(c) = row_re.captures(&doc.text[range.clone()]) else {
+                continue;
+            };
+            let d = c.get(1).expect("group");
+            let num = c.get(2).expect("group");
+            let date_at = range.start + d.start();
+            let (s, e) = (
+                range.start + num.start(),
+                range.start + c.get(2).expect("g").end(),
+            );
+            let Some(v) = parse_number(num.as_str()) else {
+                continue;
+            };
+            if out.is_covered(s, e) || !(20.0..=400.0).contains(&v) {
+                continue;
+            }
+            let rd = Reading {
+                value: v,
+                start: s,
+                end: c.get(3).map(|u| range.start + u.end()).unwrap_or(e),
+                unit_text: c
+                    .get(3)
+                    .map(|u| u.as_str().to_string())
+                    .or(header_unit.map(str::to_string)),
+                date: doc.date_at(date_at).map(|x| x.iso.clone()),
+                ..Reading::default()
+            };
+            push(doc, out, MeasureConcept::Weight, &rd, date_at, false);
+        }
+        n = end;
+    }
 }
 
 /// `log: 11/02 162.0, 11/03 163.4, 11/04 165.2`: dated numbers on a line about weight.
@@ -144,7 +210,7 @@ fn dated_weight_lists(doc: &Doc, out: &mut Output) {
             .captures_iter(line)
             .filter(|c| {
                 let at = range.start + c.get(1).map(|m| m.start()).unwrap_or(0);
-                doc.dates.iter().any(|d| d.start == at)
+                doc.date_at(at).is_some()
             })
             .collect();
         if items.len() < 2 {
@@ -186,11 +252,7 @@ fn dated_weight_lists(doc: &Doc, out: &mut Output) {
                     .get(3)
                     .map(|u| u.as_str().to_string())
                     .or(line_unit.clone()),
-                date: doc
-                    .dates
-                    .iter()
-                    .find(|d| d.start == date_at)
-                    .map(|d| d.iso.clone()),
+                date: doc.date_at(date_at).map(|d| d.iso.clone()),
                 ..Reading::default()
             };
             push(doc, out, MeasureConcept::Weight, &rd, date_at, false);
@@ -234,23 +296,15 @@ fn blood_pressures(doc: &Doc, out: &mut Output) {
     );
     for c in r.captures_iter(doc.text) {
         let m = c.get(0).expect("match");
-        if out.is_covered(m.start(), m.end())
-            || doc
-                .dates
-                .iter()
-                .any(|d| d.start < m.end() && m.start() < d.end)
-        {
+        if out.is_covered(m.start(), m.end()) || doc.date_overlaps(m.start(), m.end()) {
             continue;
         }
         let (Some(sys), Some(dia)) = (parse_number(&c[1]), parse_number(&c[2])) else {
             continue;
         };
         // Without a unit or posture, only on an observations line.
-        if c.get(3).is_none() {
-            let line = doc.text[doc.line_at(m.start())].to_ascii_lowercase();
-            if !(line.contains("obs") || line.contains("vitals") || line.contains("news")) {
-                continue;
-            }
+        if c.get(3).is_none() && !doc.line_mentions(m.start(), 160, &["obs", "vitals", "news"]) {
+            continue;
         }
         if !(50.0..=300.0).contains(&sys) || !(20.0..=200.0).contains(&dia) || dia >= sys {
             continue;
@@ -471,9 +525,8 @@ pub fn tables(doc: &Doc, out: &mut Output) {
                 .zip(&cols)
                 .find(|(_, c)| **c == Column::Date)
                 .and_then(|((at, _), _)| {
-                    doc.dates
-                        .iter()
-                        .find(|d| d.start >= *at && d.start < *at + 12)
+                    let i = doc.dates.partition_point(|d| d.start < *at);
+                    doc.dates.get(i).filter(|d| d.start < *at + 12)
                 })
                 .map(|d| d.iso.clone());
             for ((at, cell), col) in rcells.iter().zip(&cols) {

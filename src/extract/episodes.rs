@@ -12,6 +12,10 @@ pub fn find(text: &str, index: &LineIndex, dates: &[FoundDate]) -> Vec<Episode> 
     let mut starts: Vec<(usize, String, Option<String>)> = Vec::new();
     for d in dates {
         let line = index.line_range(index.line_of(d.start));
+        // Only a short lead-in can come before an entry's date.
+        if d.start - line.start > 40 {
+            continue;
+        }
         let before = text[line.start..d.start].trim();
         let lead_ok = before.is_empty()
             || before.len() <= 24 && {
@@ -30,8 +34,12 @@ pub fn find(text: &str, index: &LineIndex, dates: &[FoundDate]) -> Vec<Episode> 
         if !lead_ok {
             continue;
         }
+        let mut after_end = line.end.min(d.end + 64);
+        while !text.is_char_boundary(after_end) {
+            after_end -= 1;
+        }
         let after =
-            text[d.end..line.end].trim_start_matches([')', ']', ' ', '\t', ':', '-', '–', ',']);
+            text[d.end..after_end].trim_start_matches([')', ']', ' ', '\t', ':', '-', '–', ',']);
         // A clock time may follow the date.
         let after_time = match find_time(after) {
             Some((0, _)) => after
@@ -95,7 +103,11 @@ pub fn note_date(
             break;
         }
         let line = index.line_range(line_no);
-        let before = text[line.start..d.start].to_ascii_lowercase();
+        let mut from = d.start.saturating_sub(40).max(line.start);
+        while !text.is_char_boundary(from) {
+            from += 1;
+        }
+        let before = text[from..d.start].to_ascii_lowercase();
         let rank = if before.contains("discharge") {
             3
         } else if before.contains("date") || before.contains("seen") || before.contains("clinic") {

@@ -187,6 +187,18 @@ fn added_concept(doc: &Doc, start: usize) -> FindingConcept {
     }
 }
 
+/// The terms (sorted by start) that start within `before` bytes before `start` and
+/// `after` bytes after `end`.
+fn near<T: Copy>(
+    terms: &[(usize, usize, T, Polarity)],
+    start: usize,
+    end: usize,
+) -> &[(usize, usize, T, Polarity)] {
+    let a = terms.partition_point(|t| t.0 + 64 < start);
+    let b = terms.partition_point(|t| t.0 < end + 64);
+    &terms[a..b.max(a)]
+}
+
 /// Findings from finding terms.
 pub fn findings(doc: &Doc, out: &mut Output) {
     let terms: Vec<_> = doc
@@ -205,7 +217,7 @@ pub fn findings(doc: &Doc, out: &mut Output) {
             // "drowsy but orientated", "drowsy, oriented x3": the impairment is the finding.
             Polarity::Absent
                 if concept == FindingConcept::AlteredMentation
-                    && terms.iter().any(|&(s, e, c, p)| {
+                    && near(&terms, start, end).iter().any(|&(s, e, c, p)| {
                         c == concept
                             && p == Polarity::Present
                             && doc.line_at(s) == doc.line_at(start)
@@ -222,7 +234,7 @@ pub fn findings(doc: &Doc, out: &mut Output) {
             Polarity::Pillows => {
                 let (count, extra) = pillow_count(doc, start);
                 // A pillow count next to an orthopnoea term belongs to that term.
-                let near_term = terms.iter().any(|&(s, e, c, p)| {
+                let near_term = near(&terms, start, end).iter().any(|&(s, e, c, p)| {
                     c == FindingConcept::Orthopnea
                         && p != Polarity::Pillows
                         && (s.abs_diff(end) < 24 || e.abs_diff(start) < 24)
@@ -253,8 +265,27 @@ pub fn findings(doc: &Doc, out: &mut Output) {
         if present {
             detail.trend = trend_of(doc, end);
         }
-        let quantified =
-            detail.grade.is_some() || detail.level.is_some() || detail.pillows.is_some();
+        // Template slots: `Oedema: nil`, `Ascites: -`, `Crackles: none`.
+        let slot_negative = {
+            static SLOT: OnceLock<Regex> = OnceLock::new();
+            let r = re(
+                &SLOT,
+                r"(?i)^\s*[:=]\s*(?:(?:nil|none|no|neg|negative|absent|nad|not present)\b|[-–](?:\s|$|[,.;]))",
+            );
+            let line_end = doc.line_at(end).end;
+            r.is_match(&doc.text[end..line_end.max(end)])
+        };
+        let present = present && !slot_negative;
+        // A grade, level or count written beside the term (not a level the term itself
+        // names, as in "ankle swelling").
+        let term_lower = doc.text[start..end].to_ascii_lowercase();
+        let own_level = detail.level.as_deref().is_some_and(|l| {
+            let root = l.trim_end_matches('s');
+            term_lower.contains(root.split('-').next_back().unwrap_or(root))
+        });
+        let quantified = detail.grade.is_some()
+            || (detail.level.is_some() && !own_level)
+            || detail.pillows.is_some();
         let ctx = doc.engine.context(start, end, Target::Finding, quantified);
         let assertion = if present {
             ctx.assertion
@@ -344,6 +375,12 @@ fn gap_ok(doc: &Doc, a: usize, b: usize) -> bool {
         .all(|w| ACUITY_GAP_WORDS.contains(&w.to_ascii_lowercase().as_str()))
 }
 
+fn hf_near(hf: &[(usize, usize)], start: usize, end: usize) -> &[(usize, usize)] {
+    let a = hf.partition_point(|t| t.0 + 64 < start);
+    let b = hf.partition_point(|t| t.0 < end + 64);
+    &hf[a..b.max(a)]
+}
+
 /// Statements from statement terms.
 pub fn statements(doc: &Doc, out: &mut Output) {
     let terms: Vec<_> = doc
@@ -399,7 +436,7 @@ pub fn statements(doc: &Doc, out: &mut Output) {
                     // "reduced EF", "preserved ejection fraction": a type only when it
                     // qualifies heart failure on the same line ("HF with reduced EF",
                     // "heart failure (preserved EF)").
-                    let near = hf_terms.iter().any(|&(s, e)| {
+                    let near = hf_near(&hf_terms, start, end).iter().any(|&(s, e)| {
                         (e <= start && start - e <= 24 && doc.line_at(s) == doc.line_at(start))
                             || (s >= end && s - end <= 8 && doc.line_at(s) == doc.line_at(start))
                     });
@@ -409,7 +446,7 @@ pub fn statements(doc: &Doc, out: &mut Output) {
                 }
             }
             StatementKey::Acuity => {
-                let attached = hf_terms.iter().any(|&(s, e)| {
+                let attached = hf_near(&hf_terms, start, end).iter().any(|&(s, e)| {
                     (s >= end && gap_ok(doc, end, s)) || (e <= start && gap_ok(doc, e, start))
                 });
                 if attached {

@@ -28,13 +28,23 @@ pub struct Output {
     pub measurements: Vec<Measurement>,
     pub findings: Vec<Finding>,
     pub statements: Vec<Statement>,
-    /// Byte ranges already read as labelled values; the unlabelled pass skips them.
-    pub covered: Vec<(usize, usize)>,
+    /// Byte ranges already read as values (start → furthest end); later passes skip them.
+    pub covered: std::collections::BTreeMap<usize, usize>,
 }
+
+/// No value read spans more than this many bytes (two lines of [`MAX_VALUE_BYTES`]).
+const MAX_COVER: usize = 4 * MAX_VALUE_BYTES;
 
 impl Output {
     pub fn is_covered(&self, start: usize, end: usize) -> bool {
-        self.covered.iter().any(|&(s, e)| start < e && s < end)
+        self.covered
+            .range(start.saturating_sub(MAX_COVER)..end)
+            .any(|(_, &e)| start < e)
+    }
+
+    pub fn cover(&mut self, start: usize, end: usize) {
+        let e = self.covered.entry(start).or_insert(end);
+        *e = (*e).max(end);
     }
 }
 
@@ -59,15 +69,22 @@ pub struct Reading {
 pub fn parse_at<'t>(doc: &Doc<'t>, rule: Rule, start: usize) -> Option<Pair<'t, Rule>> {
     let line = doc.line_at(start);
     let mut line_end = line.end;
-    let rest = doc.text[start.min(line.end)..line.end].trim_matches([' ', '\t', ':', '-', '=']);
     let line_no = doc.index.line_of(start);
-    if line_no + 1 < doc.index.line_count() {
+    // Only a short rest of line can be a label waiting for its value on the next line.
+    if line.end.saturating_sub(start) <= 80 && line_no + 1 < doc.index.line_count() {
+        let rest = doc.text[start.min(line.end)..line.end].trim_matches([' ', '\t', ':', '-', '=']);
         let next = doc.index.line_range(line_no + 1);
         let next_text = doc.text[next.clone()].trim_start();
         let next_at = next.end - next_text.len();
-        let this_line = &doc.text[line.clone()];
-        let header_like = this_line.contains("  ") || this_line.contains(['\t', '|']);
-        let next_is_dated = doc.dates.iter().any(|d| d.start == next_at);
+        let header_like = doc.line_mentions(start, 200, &["  ", "\t", "|"]);
+        let next_is_dated = doc.date_at(next_at).is_some() || {
+            let b = next_text.as_bytes();
+            let digits = b.iter().take_while(|c| c.is_ascii_digit()).count();
+            // `10/04 72.9`: a day and month at the start of the line.
+            (1..=2).contains(&digits)
+                && b.get(digits) == Some(&b'/')
+                && b.get(digits + 1).is_some_and(|c| c.is_ascii_digit())
+        };
         // A value wrapped onto the next line, or an aside that starts it.
         let wrapped = rest.len() <= 60 && !rest.contains(|c: char| c.is_ascii_digit());
         // A numbered list item ("4. Repeat VBG") starts a new point.
@@ -384,10 +401,8 @@ pub fn push(
             doc.episode_of(start)
                 .and_then(|i| doc.episodes[i].date.clone())
         });
-    let time = crate::text::dates::find_time(&doc.text[doc.line_at(start)])
-        .filter(|_| doc.line_date(r.start).is_some())
-        .map(|(_, t)| t);
-    out.covered.push((start, end));
+    let time = doc.line_time(r.start);
+    out.cover(start, end);
     out.measurements.push(Measurement {
         concept,
         value: r.value,
@@ -644,11 +659,7 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
                 match part.as_rule() {
                     Rule::day_token => {
                         let abs = end + part.as_span().start();
-                        date = doc
-                            .dates
-                            .iter()
-                            .find(|d| d.start == abs)
-                            .map(|d| d.iso.clone());
+                        date = doc.date_at(abs).map(|d| d.iso.clone());
                     }
                     Rule::reading => r = reading_of(part, end),
                     Rule::unit => {
@@ -757,7 +768,7 @@ fn target_weight(doc: &Doc, out: &mut Output, start: usize, end: usize) {
         return;
     };
     let ctx = doc.engine.context(start, r.end, Target::Statement, false);
-    out.covered.push((start, r.end));
+    out.cover(start, r.end);
     out.statements.push(Statement {
         kind: StatementKind::TargetWeight,
         value: format!("{}", (kg * 10.0).round() / 10.0),
@@ -857,7 +868,7 @@ fn jvp(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
     }
     // A finding term already covers `JVP raised`/`JVP not raised`: only add what the
     // number or level documents when no finding term overlaps this value.
-    let term_here = doc.hits.iter().any(|h| {
+    let term_here = doc.hits_near(start, pend).any(|h| {
         matches!(h.kind, Kind::Finding(FindingConcept::RaisedJvp, _))
             && h.start < pend
             && start < h.end
@@ -918,7 +929,7 @@ fn jvp_words(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize
     };
     let m = c.get(0).expect("match");
     let pend = end + m.end();
-    let covered_by_term = doc.hits.iter().any(|h| {
+    let covered_by_term = doc.hits_near(start, pend).any(|h| {
         matches!(h.kind, Kind::Finding(FindingConcept::RaisedJvp, _))
             && h.start < pend
             && start < h.end
@@ -1093,19 +1104,14 @@ fn nyha(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
         return;
     };
     // `class 2` alone is NYHA only where NYHA or heart failure is in the same line.
-    if label == Label::NyhaWeak {
-        let line = &doc.text[doc.line_at(start)].to_ascii_lowercase();
-        if !(line.contains("nyha")
-            || line.contains("functional")
-            || line.contains("hf")
-            || line.contains("heart failure"))
-        {
-            return;
-        }
+    if label == Label::NyhaWeak
+        && !doc.line_mentions(start, 160, &["nyha", "functional", "hf", "heart failure"])
+    {
+        return;
     }
     let roman = ["I", "II", "III", "IV"][(class - 1) as usize];
     let ctx = doc.engine.context(start, pend, Target::Statement, false);
-    out.covered.push((start, pend));
+    out.cover(start, pend);
     out.statements.push(Statement {
         kind: StatementKind::Nyha,
         value: roman.to_string(),
@@ -1147,7 +1153,7 @@ fn push_finding(
         (false, Assertion::Present) => Assertion::Absent,
         (false, a) => a,
     };
-    out.covered.push((start, end));
+    out.cover(start, end);
     out.findings.push(Finding {
         concept,
         assertion,
@@ -1170,7 +1176,7 @@ fn capillary_refill(doc: &Doc, out: &mut Output, start: usize, end: usize) {
         return;
     };
     let pend = end + p.as_span().end();
-    let overlaps_term = doc.hits.iter().any(|h| {
+    let overlaps_term = doc.hits_near(start, pend).any(|h| {
         matches!(h.kind, Kind::Finding(FindingConcept::ProlongedCapRefill, _))
             && h.start < pend
             && start < h.end

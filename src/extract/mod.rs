@@ -59,12 +59,65 @@ impl Doc<'_> {
 
     /// The date written on the same line before `offset`, if any (a dated row or entry).
     pub fn line_date(&self, offset: usize) -> Option<String> {
+        self.line_date_found(offset).map(|d| d.iso.clone())
+    }
+
+    fn line_date_found(&self, offset: usize) -> Option<&FoundDate> {
         let line = self.line_at(offset);
-        self.dates
+        let i = self.dates.partition_point(|d| d.end <= offset);
+        self.dates[..i].last().filter(|d| d.start >= line.start)
+    }
+
+    /// A clock time written just after the line's date (`02/06 08:30 ...`).
+    pub fn line_time(&self, offset: usize) -> Option<String> {
+        let d = self.line_date_found(offset)?;
+        let line = self.line_at(offset);
+        let mut end = (d.end + 12).min(line.end);
+        while !self.text.is_char_boundary(end) {
+            end -= 1;
+        }
+        let after = self.text.get(d.end..end)?;
+        crate::text::dates::find_time(after)
+            .filter(|(at, _)| *at <= 2)
+            .map(|(_, t)| t)
+    }
+
+    /// Whether the line holding `offset` contains one of `words` (ASCII, lower case), looked
+    /// for within `reach` bytes either side so that a very long line costs no more.
+    pub fn line_mentions(&self, offset: usize, reach: usize, words: &[&str]) -> bool {
+        let line = self.line_at(offset);
+        let mut a = offset.saturating_sub(reach).max(line.start);
+        while !self.text.is_char_boundary(a) {
+            a += 1;
+        }
+        let mut b = (offset + reach).min(line.end).max(a);
+        while !self.text.is_char_boundary(b) {
+            b -= 1;
+        }
+        let window = self.text[a..b].to_ascii_lowercase();
+        words.iter().any(|w| window.contains(w))
+    }
+
+    /// The date that starts exactly at `offset`.
+    pub fn date_at(&self, offset: usize) -> Option<&FoundDate> {
+        let i = self.dates.partition_point(|d| d.start < offset);
+        self.dates.get(i).filter(|d| d.start == offset)
+    }
+
+    /// Whether any date overlaps `start..end`.
+    pub fn date_overlaps(&self, start: usize, end: usize) -> bool {
+        let i = self.dates.partition_point(|d| d.end <= start);
+        self.dates.get(i).is_some_and(|d| d.start < end)
+    }
+
+    /// Lexicon hits that overlap `start..end` (terms are short, so the search window is
+    /// bounded).
+    pub fn hits_near(&self, start: usize, end: usize) -> impl Iterator<Item = &lexicon::Hit> {
+        let from = self.hits.partition_point(|h| h.start + 256 < start);
+        self.hits[from..]
             .iter()
-            .rev()
-            .find(|d| d.start >= line.start && d.end <= offset)
-            .map(|d| d.iso.clone())
+            .take_while(move |h| h.start < end)
+            .filter(move |h| h.end > start)
     }
 }
 

@@ -81,10 +81,16 @@ fn is_full_stop(text: &str, i: usize) -> bool {
         _ => return false,
     }
     // The word before the full stop.
-    let before = &text[..i];
+    // Only the last few bytes matter: abbreviations are short.
+    let mut from = i.saturating_sub(16);
+    while !text.is_char_boundary(from) {
+        from += 1;
+    }
+    let before = &text[from..i];
     let word_start = before
-        .rfind(|c: char| c.is_whitespace() || c == '(' || c == ',')
-        .map(|p| p + 1)
+        .char_indices()
+        .rfind(|&(_, c)| c.is_whitespace() || c == '(' || c == ',')
+        .map(|(p, c)| p + c.len_utf8())
         .unwrap_or(0);
     let word = before[word_start..].to_ascii_lowercase();
     !ABBREVIATIONS.contains(&word.as_str())

@@ -1,0 +1,514 @@
+//! Extraction on invented phrasings: one or more cases per value rule of the grammar and per
+//! assertion trigger family. Expected values are worked by hand from the phrase; unit
+//! conversions cite their source.
+
+use tidemark::config::ExtractOptions;
+use tidemark::extract::extract;
+use tidemark::model::{
+    Assertion, Experiencer, Extraction, FindingConcept, MeasureConcept, StatementKind, Temporality,
+};
+
+fn ex(text: &str) -> Extraction {
+    extract(text, &ExtractOptions::default())
+}
+
+/// Normalised values of one concept, in document order.
+fn values(text: &str, concept: MeasureConcept) -> Vec<f64> {
+    ex(text)
+        .measurements
+        .iter()
+        .filter(|m| m.concept == concept && m.assertion == Assertion::Present)
+        .map(|m| {
+            let v = m.normalized.map(|q| q.value).unwrap_or(m.value);
+            (v * 1000.0).round() / 1000.0
+        })
+        .collect()
+}
+
+fn finding(text: &str, concept: FindingConcept) -> Option<(Assertion, Temporality, Experiencer)> {
+    ex(text)
+        .findings
+        .iter()
+        .rev()
+        .find(|f| f.concept == concept)
+        .map(|f| (f.assertion, f.temporality, f.experiencer))
+}
+
+fn assertion(text: &str, concept: FindingConcept) -> Option<Assertion> {
+    finding(text, concept).map(|f| f.0)
+}
+
+use MeasureConcept as M;
+
+#[test]
+fn blood_pressure_forms() {
+    assert_eq!(values("BP 98/60", M::SystolicBp), [98.0]);
+    assert_eq!(values("B/P: 132/84 mmHg", M::DiastolicBp), [84.0]);
+    assert_eq!(values("Obs 98/60 sitting", M::SystolicBp), [98.0]);
+    assert_eq!(
+        values("lying BP 92/58, standing 74/50", M::SystolicBp),
+        [92.0, 74.0]
+    );
+    assert_eq!(values("102/64 mmHg at rest", M::SystolicBp), [102.0]);
+    // A date is not a blood pressure.
+    assert!(values("seen 12/06/2026", M::SystolicBp).is_empty());
+}
+
+#[test]
+fn heart_rate_forms() {
+    assert_eq!(values("HR 112", M::HeartRate), [112.0]);
+    assert_eq!(values("P 88 reg", M::HeartRate), [88.0]);
+    assert_eq!(values("pulse 104 irreg", M::HeartRate), [104.0]);
+    assert_eq!(values("AF 130s", M::HeartRate), [130.0]);
+    assert_eq!(values("rate 72 bpm", M::HeartRate), [72.0]);
+    // An age and sex after "A/P:" and an interval after "recheck HR" are not rates.
+    assert!(values("A/P: 67M with HFrEF", M::HeartRate).is_empty());
+    assert!(values("recheck HR 2h", M::HeartRate).is_empty());
+}
+
+#[test]
+fn respiratory_rate_and_saturation() {
+    assert_eq!(values("RR 22", M::RespiratoryRate), [22.0]);
+    assert_eq!(values("SpO2 93% RA", M::Spo2), [93.0]);
+    assert_eq!(values("sats 91% on 2L", M::Spo2), [91.0]);
+    assert_eq!(values("O2 sat 95% 4L NC", M::Spo2), [95.0]);
+    assert_eq!(
+        values("sats 88% on air -> 94% on 6 L", M::Spo2),
+        [88.0, 94.0]
+    );
+}
+
+#[test]
+fn temperature_units() {
+    assert_eq!(values("T 37.2", M::Temperature), [37.2]);
+    assert_eq!(values("Temp 37.0C", M::Temperature), [37.0]);
+    // °F → °C by definition: (99.1 − 32) × 5/9 = 37.278.
+    assert_eq!(values("Temp 99.1F", M::Temperature), [37.278]);
+    assert_eq!(values("afebrile, 36.4 °C", M::Temperature), [36.4]);
+}
+
+#[test]
+fn weights_and_asides() {
+    assert_eq!(values("wt 82.4kg", M::Weight), [82.4]);
+    // 181 lb × 0.45359237 (NIST SP 811) = 82.100 kg.
+    assert_eq!(values("Weight: 181 lb", M::Weight), [82.1]);
+    assert_eq!(values("82.4 kg (yesterday 83.1)", M::Weight), [82.4, 83.1]);
+    assert_eq!(values("Wt 70.6 kg (up 0.4)", M::Weight), [70.6]);
+    // 11 st 9 lb = 163 lb = 73.936 kg (stone = 14 lb).
+    assert_eq!(values("Home weight 11 st 9 lb today", M::Weight), [73.936]);
+    assert_eq!(
+        values("Weights: 01/06 89.0, 02/06 87.4 kg", M::Weight),
+        [89.0, 87.4]
+    );
+    // A change and a target are not weights.
+    assert!(values("lost 2.1 kg since Monday", M::Weight).is_empty());
+    let e = ex("Target weight 72 kg");
+    assert!(e.measurements.is_empty());
+    assert!(e
+        .statements
+        .iter()
+        .any(|s| s.kind == StatementKind::TargetWeight && s.value == "72"));
+}
+
+#[test]
+fn weight_tables_and_row_blocks() {
+    let table = "Date        Weight (kg)  Urine (mL)  Net (mL)\n\
+                 01/06/2026  89.0         1800        -1200\n\
+                 02/06/2026  87.6         2100        -1500\n";
+    assert_eq!(values(table, M::Weight), [89.0, 87.6]);
+    assert_eq!(values(table, M::FluidBalance), [-1200.0, -1500.0]);
+    let e = ex(table);
+    let dated: Vec<_> = e
+        .measurements
+        .iter()
+        .filter(|m| m.concept == M::Weight)
+        .map(|m| m.date.clone().unwrap_or_default())
+        .collect();
+    assert_eq!(dated, ["2026-06-01", "2026-06-02"]);
+    let block = "Daily weights (kg):\n  10/04  72.9\n  12/04  73.1\n";
+    assert_eq!(values(block, M::Weight), [72.9, 73.1]);
+}
+
+#[test]
+fn height_forms() {
+    assert_eq!(values("Ht 162 cm", M::Height), [162.0]);
+    // 5 ft 8 in = 68 in × 2.54 = 172.72 cm (exact inch, 1959 agreement).
+    assert_eq!(values("Height 5 ft 8 in", M::Height), [172.72]);
+    assert_eq!(values("Ht 5'4\"", M::Height), [162.56]);
+}
+
+#[test]
+fn jvp_numbers_levels_and_words() {
+    assert_eq!(values("JVP +4cm", M::Jvp), [4.0]);
+    assert_eq!(values("JVP 8 cm H2O", M::Jvp), [8.0]);
+    assert_eq!(
+        assertion("JVP +4cm", FindingConcept::RaisedJvp),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("JVP 2 cm", FindingConcept::RaisedJvp),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("JVP raised to earlobes", FindingConcept::RaisedJvp),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("Her JVP was not raised.", FindingConcept::RaisedJvp),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("JVP: not raised", FindingConcept::RaisedJvp),
+        Some(Assertion::Absent)
+    );
+    // Not seen is neither raised nor normal.
+    assert_eq!(assertion("JVP not seen", FindingConcept::RaisedJvp), None);
+    assert_eq!(
+        assertion("Neck: no JVD", FindingConcept::RaisedJvp),
+        Some(Assertion::Absent)
+    );
+}
+
+#[test]
+fn fluid_balance_and_urine_output() {
+    assert_eq!(values("I/O 1.2L/2.6L", M::FluidBalance), [-1400.0]);
+    assert_eq!(values("net -1.4 L", M::FluidBalance), [-1400.0]);
+    assert_eq!(values("balance +850 ml", M::FluidBalance), [850.0]);
+    assert_eq!(values("FB negative 1.2 L", M::FluidBalance), [-1200.0]);
+    assert_eq!(
+        values("Fluid balance since midnight −950 ml", M::FluidBalance),
+        [-950.0]
+    );
+    assert_eq!(values("UO 30 ml/hr", M::UrineOutput), [30.0]);
+    assert_eq!(values("UO remains ~300 ml/24 h", M::UrineOutput), [300.0]);
+}
+
+#[test]
+fn ejection_fraction_forms() {
+    assert_eq!(values("EF 25%", M::Lvef), [25.0]);
+    // A range gives its midpoint.
+    assert_eq!(values("LVEF 35-40%", M::Lvef), [37.5]);
+    assert_eq!(values("EF estimated at 30 to 35 percent", M::Lvef), [32.5]);
+    assert_eq!(
+        values("an LVEF of 45% (38% in 2024)", M::Lvef),
+        [45.0, 38.0]
+    );
+    // A year in brackets is not an EF.
+    assert_eq!(values("LVEF 57% (echo 2025)", M::Lvef), [57.0]);
+}
+
+#[test]
+fn labs_with_and_without_units() {
+    assert_eq!(values("BNP 1,840 pg/mL", M::Bnp), [1840.0]);
+    assert_eq!(values("NT-proBNP 6420 ng/L", M::NtProbnp), [6420.0]);
+    assert_eq!(values("Cr 141 (adm 126)", M::Creatinine), [141.0, 126.0]);
+    // Creatinine 1.7 mg/dL × 88.4 (molar mass 113.12 g/mol) = 150.28 µmol/L.
+    assert_eq!(
+        values("Cr 1.7 (baseline 1.3)", M::Creatinine),
+        [150.28, 114.92]
+    );
+    // BUN 38 mg/dL × 0.357 = 13.566 mmol/L urea.
+    assert_eq!(values("BUN 38", M::Urea), [13.566]);
+    assert_eq!(values("Na 133, K 3.9", M::Potassium), [3.9]);
+    assert_eq!(values("K+ 5.4 mmol/L", M::Potassium), [5.4]);
+    assert_eq!(
+        values("lactate 3.6 (down from 4.9)", M::Lactate),
+        [3.6, 4.9]
+    );
+    // Hb 12.9 g/dL × 10 = 129 g/L.
+    assert_eq!(values("Hgb 12.9", M::Hemoglobin), [129.0]);
+    assert_eq!(values("Hb 124", M::Hemoglobin), [124.0]);
+    assert_eq!(
+        values(
+            "Creatinine rose from 84 umol/L to a peak of 109 umol/L",
+            M::Creatinine
+        ),
+        [84.0, 109.0]
+    );
+    assert_eq!(values("creatinine\n118 umol/L", M::Creatinine), [118.0]);
+    // Thresholds and orders are not values.
+    assert!(values("if K > 5.5 hold spironolactone", M::Potassium).is_empty());
+    assert!(values("repeat lactate 22:00", M::Lactate).is_empty());
+}
+
+#[test]
+fn inferred_units_are_flagged() {
+    let e = ex("Wt 71.2. Cr 188.");
+    let w = e
+        .measurements
+        .iter()
+        .find(|m| m.concept == M::Weight)
+        .unwrap();
+    assert!(w.unit_inferred);
+    let e = ex("Wt 71.2 kg");
+    assert!(!e.measurements[0].unit_inferred);
+}
+
+#[test]
+fn findings_and_their_detail() {
+    let e = ex("3-pillow orthopnoea. Pitting oedema ++ to knees. Bibasal creps.");
+    let o = e
+        .findings
+        .iter()
+        .find(|f| f.concept == FindingConcept::Orthopnea)
+        .unwrap();
+    assert_eq!(o.detail.pillows, Some(3));
+    let ed = e
+        .findings
+        .iter()
+        .find(|f| f.concept == FindingConcept::PeripheralEdema)
+        .unwrap();
+    assert_eq!(ed.detail.grade, Some(2.0));
+    assert_eq!(ed.detail.level.as_deref(), Some("knees"));
+    let c = e
+        .findings
+        .iter()
+        .find(|f| f.concept == FindingConcept::Crackles)
+        .unwrap();
+    assert_eq!(c.detail.level.as_deref(), Some("bases"));
+    assert_eq!(
+        assertion("rales to mid-zones", FindingConcept::Crackles),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("chest clear", FindingConcept::Crackles),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("PND most nights", FindingConcept::Pnd),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("tense ascites", FindingConcept::Ascites),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("S3 gallop", FindingConcept::S3),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("HS I+II, no added sounds", FindingConcept::S3),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("cool peripheries", FindingConcept::CoolPeripheries),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("warm and well perfused", FindingConcept::CoolPeripheries),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("CRT 4s", FindingConcept::ProlongedCapRefill),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("CRT <2 s", FindingConcept::ProlongedCapRefill),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("confused overnight", FindingConcept::AlteredMentation),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("GCS 13", FindingConcept::AlteredMentation),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("A&O x3", FindingConcept::AlteredMentation),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("now oliguric", FindingConcept::Oliguria),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("symptomatic hypotension", FindingConcept::Hypotension),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion(
+            "bilateral pleural effusions",
+            FindingConcept::PleuralEffusion
+        ),
+        Some(Assertion::Present)
+    );
+    assert_eq!(
+        assertion("positive HJR", FindingConcept::HepatojugularReflux),
+        Some(Assertion::Present)
+    );
+    // Pulmonary oedema is not peripheral oedema; a pericardial effusion is not pleural.
+    assert_eq!(
+        assertion("pulmonary oedema on CXR", FindingConcept::PeripheralEdema),
+        None
+    );
+    assert_eq!(
+        assertion(
+            "small pericardial effusion",
+            FindingConcept::PleuralEffusion
+        ),
+        None
+    );
+    assert_eq!(
+        assertion("cannot lie flat", FindingConcept::Orthopnea),
+        Some(Assertion::Present)
+    );
+}
+
+#[test]
+fn negation_family() {
+    // NegEx (Chapman et al. 2001): forward cues cover a list, backward cues a near target.
+    let t = "No orthopnoea, PND or ankle swelling.";
+    assert_eq!(
+        assertion(t, FindingConcept::Orthopnea),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(assertion(t, FindingConcept::Pnd), Some(Assertion::Absent));
+    assert_eq!(
+        assertion(t, FindingConcept::PeripheralEdema),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("denies PND", FindingConcept::Pnd),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("orthopnoea resolved", FindingConcept::Orthopnea),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("Oedema: nil", FindingConcept::PeripheralEdema),
+        Some(Assertion::Absent)
+    );
+    // A termination term ends the scope.
+    assert_eq!(
+        assertion("No PND but bibasal crackles", FindingConcept::Crackles),
+        Some(Assertion::Present)
+    );
+}
+
+#[test]
+fn possibility_family() {
+    assert_eq!(
+        assertion("?S3", FindingConcept::S3),
+        Some(Assertion::Possible)
+    );
+    assert_eq!(
+        assertion("?soft S3 at the apex", FindingConcept::S3),
+        Some(Assertion::Possible)
+    );
+    assert_eq!(
+        assertion(
+            "possible small right effusion",
+            FindingConcept::PleuralEffusion
+        ),
+        Some(Assertion::Possible)
+    );
+}
+
+#[test]
+fn hypothetical_family() {
+    assert_eq!(
+        assertion(
+            "If she develops orthopnoea, call the HF nurse.",
+            FindingConcept::Orthopnea
+        ),
+        Some(Assertion::Hypothetical)
+    );
+    assert_eq!(
+        assertion(
+            "Go to the ED for severe shortness of breath.",
+            FindingConcept::Dyspnea
+        ),
+        Some(Assertion::Hypothetical)
+    );
+}
+
+#[test]
+fn historical_and_experiencer_families() {
+    let (_, t, _) = finding(
+        "PMH: pleural effusion 2019",
+        FindingConcept::PleuralEffusion,
+    )
+    .unwrap();
+    assert_eq!(t, Temporality::Historical);
+    let (_, _, x) = finding("Mother had ankle oedema.", FindingConcept::PeripheralEdema).unwrap();
+    assert_eq!(x, Experiencer::Other);
+    let (_, _, x) = finding(
+        "Wife reports he is confused.",
+        FindingConcept::AlteredMentation,
+    )
+    .unwrap();
+    assert_eq!(x, Experiencer::Patient);
+}
+
+#[test]
+fn statements_of_type_acuity_volume_and_nyha() {
+    let e = ex("Acute on chronic HFrEF. NYHA class III. Remains fluid overloaded.");
+    let kinds: Vec<_> = e
+        .statements
+        .iter()
+        .map(|s| (s.kind, s.value.as_str()))
+        .collect();
+    assert!(
+        kinds.contains(&(StatementKind::HfType, "hfref")),
+        "{kinds:?}"
+    );
+    assert!(
+        kinds.contains(&(StatementKind::Acuity, "acute_on_chronic")),
+        "{kinds:?}"
+    );
+    assert!(kinds.contains(&(StatementKind::Nyha, "III")), "{kinds:?}");
+    assert!(
+        kinds.contains(&(StatementKind::VolumeStatus, "overloaded")),
+        "{kinds:?}"
+    );
+    // "chronic" that does not qualify heart failure is not an acuity.
+    let e = ex("Chronic AF, heart failure.");
+    assert!(!e.statements.iter().any(|s| s.kind == StatementKind::Acuity));
+    let e = ex("NYHA 2-3");
+    assert!(e
+        .statements
+        .iter()
+        .any(|s| s.kind == StatementKind::Nyha && s.value == "III"));
+}
+
+#[test]
+fn age_and_sex() {
+    for (text, age, sex) in [
+        ("78M, Bed 4", "78", "male"),
+        ("82-year-old woman with HFpEF", "82", "female"),
+        ("Patient: K.L., F, 67", "67", "female"),
+        ("Mrs K.L., 64 years", "64", "female"),
+    ] {
+        let e = ex(text);
+        let get = |k| {
+            e.statements
+                .iter()
+                .find(|s| s.kind == k)
+                .map(|s| s.value.clone())
+        };
+        assert_eq!(get(StatementKind::Age).as_deref(), Some(age), "{text}");
+        assert_eq!(get(StatementKind::Sex).as_deref(), Some(sex), "{text}");
+    }
+}
+
+#[test]
+fn dated_entries_carry_their_dates() {
+    let e = ex("02/06/2026 Ward round\nWt 80.1 kg\n03/06/2026 Review\nWt 79.4 kg\n");
+    assert_eq!(e.episodes.len(), 2);
+    let dates: Vec<_> = e
+        .measurements
+        .iter()
+        .map(|m| m.date.clone().unwrap())
+        .collect();
+    assert_eq!(dates, ["2026-06-02", "2026-06-03"]);
+    assert_eq!(e.note_date.as_deref(), Some("2026-06-03"));
+}
+
+#[test]
+fn us_dates_read_month_first_when_the_note_says_so() {
+    // 06/24/2026 can only be month first; the note's other dates follow it.
+    let e = ex("Seen 06/24/2026.\n07/01/2026 Review\nwt 180 lb\n07/02/2026 Review\nwt 178 lb\n");
+    assert_eq!(e.episodes[0].date.as_deref(), Some("2026-07-01"));
+}
