@@ -18,6 +18,10 @@ pub mod timeline;
 pub mod trends;
 
 #[cfg(test)]
+pub(crate) mod examples;
+#[cfg(test)]
+mod schema_tests;
+#[cfg(test)]
 pub(crate) mod testkit;
 
 use serde::Serialize;

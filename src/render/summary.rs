@@ -226,3 +226,79 @@ fn lab_line(name: &str, s: &LabSeries, decimals: usize) -> String {
     }
     line
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::picture::examples;
+
+    fn render(notes: Vec<crate::picture::testkit::Note>) -> String {
+        let docs: Vec<(Doc, Option<Analysis>)> = notes
+            .into_iter()
+            .enumerate()
+            .map(|(i, n)| {
+                let ex = n.build();
+                let picture = crate::picture::build(&ex);
+                (
+                    Doc {
+                        source: format!("note-{i}.txt"),
+                        text: Some(n.text.clone()),
+                        warnings: Vec::new(),
+                    },
+                    Some(Analysis {
+                        extraction: ex,
+                        picture,
+                        diagnostics: Vec::new(),
+                    }),
+                )
+            })
+            .collect();
+        let mut out = Vec::new();
+        write(&mut out, &docs).unwrap();
+        String::from_utf8(out).unwrap()
+    }
+
+    #[test]
+    fn summary_shows_the_picture_with_positions_and_the_caution() {
+        let s = render(vec![examples::discharge_summary(), examples::ward_record()]);
+        assert!(s.contains("== note-0.txt"));
+        assert!(s.contains("profile: warm-dry"));
+        assert!(s.contains("profile: cold-wet"));
+        assert!(s.contains("conflict (congestion)"));
+        // Evidence lines carry line:column and the words: "JVP not raised" is line 8, column 24.
+        assert!(s
+            .lines()
+            .any(|l| l.contains("dry") && l.contains("8:24") && l.contains("\"JVP not raised\"")));
+        assert!(s.contains("hf type hfref (stated"));
+        assert!(s.contains("acuity acute_on_chronic"));
+        assert!(s.contains("patient: age 72, sex female"));
+        assert!(s.contains("eGFR (CKD-EPI 2021) 36.3 mL/min/1.73m2 [G3b]"));
+        assert!(s.contains("BMI - (no height documented)"));
+        assert!(s.contains("weight kg: 78.6 -> 72.9; change -5.7"));
+        assert!(s.contains("GAIN > 2 kg in 3 days"));
+        assert!(s.contains("creatinine umol/L: 134 -> 231; change +97"));
+        assert!(s.trim_end().ends_with(crate::render::CAUTION));
+    }
+
+    #[test]
+    fn skipped_documents_show_their_warning_only() {
+        let docs = vec![(
+            Doc {
+                source: "bad.bin".into(),
+                text: None,
+                warnings: vec![crate::model::InputWarning {
+                    code: "binary",
+                    message: "looks binary, skipped".into(),
+                    offset: None,
+                }],
+            },
+            None,
+        )];
+        let mut out = Vec::new();
+        write(&mut out, &docs).unwrap();
+        let s = String::from_utf8(out).unwrap();
+        assert!(s.contains("warning: looks binary, skipped"));
+        assert!(!s.contains("profile:"));
+        assert!(s.contains(crate::render::CAUTION));
+    }
+}
