@@ -21,12 +21,10 @@
 
 use serde::Serialize;
 
-use super::derived::{classify_lvef, value};
+use super::derived::{classify_lvef, latest_lvef};
 use super::timeline::{Timeline, When};
 use super::{counts, Counts};
-use crate::model::{
-    Experiencer, Extraction, MeasureConcept, Statement, StatementKind, Temporality,
-};
+use crate::model::{Experiencer, Extraction, Statement, StatementKind, Temporality};
 use crate::span::Span;
 
 /// Where a classification came from.
@@ -210,22 +208,7 @@ pub fn build(ex: &Extraction, tl: &Timeline) -> Classifications {
     if let Some((s, v)) = latest(ex, tl, StatementKind::HfType, hf_type) {
         c.hf_type = Some(v.into());
         c.sources.hf_type = Some(stated(s, None));
-    } else if let Some(m) = ex
-        .measurements
-        .iter()
-        .filter(|m| m.concept == MeasureConcept::Lvef)
-        .filter(|m| {
-            counts(m.assertion, m.temporality, m.experiencer) == Counts::Present
-                && value(m).is_finite()
-        })
-        .max_by_key(|m| {
-            (
-                tl.when(m.episode, m.section, m.span.start, m.time_ref),
-                m.date.clone().unwrap_or_default(),
-                m.span.start,
-            )
-        })
-    {
+    } else if let Some(m) = latest_lvef(ex, tl) {
         let cat = classify_lvef(m);
         if let Some(k) = cat.category {
             c.hf_type = Some(k.into());

@@ -194,9 +194,9 @@ pub fn bp_pairs(ex: &Extraction) -> Vec<BpPair<'_>> {
         let found = dias.iter().enumerate().find(|(i, d)| {
             !used[*i]
                 && (d.span == s.span
-                    || (d.span.start < s.span.end.max(s.span.start + 1)
-                        && s.span.start < d.span.end.max(d.span.start + 1))
-                    || (d.span.start >= s.span.end && d.span.start <= s.span.end + 3))
+                    || (d.span.start < s.span.end.max(s.span.start.saturating_add(1))
+                        && s.span.start < d.span.end.max(d.span.start.saturating_add(1)))
+                    || (d.span.start >= s.span.end && d.span.start <= s.span.end.saturating_add(3)))
         });
         if let Some((i, d)) = found {
             used[i] = true;
@@ -242,6 +242,20 @@ fn latest<'a>(
     ex.measurements
         .iter()
         .filter(|m| m.concept == concept && counted(m))
+        .max_by_key(|m| key(tl, m))
+}
+
+/// An LVEF a category can be read from: above 0 and at most 100 % (a fraction up to 1).
+pub fn plausible_lvef(m: &Measurement) -> bool {
+    let v = value(m);
+    v.is_finite() && v > 0.0 && v <= 100.0
+}
+
+/// The latest plausible LVEF of the patient.
+pub fn latest_lvef<'a>(ex: &'a Extraction, tl: &Timeline) -> Option<&'a Measurement> {
+    ex.measurements
+        .iter()
+        .filter(|m| m.concept == MeasureConcept::Lvef && counted(m) && plausible_lvef(m))
         .max_by_key(|m| key(tl, m))
 }
 
@@ -319,7 +333,7 @@ pub fn lvef_category(v: f64) -> &'static str {
 /// when every value it allows falls in one category.
 pub fn classify_lvef(m: &Measurement) -> LvefCategory {
     let mut v = value(m);
-    let mut range = m.range;
+    let mut range = m.range.filter(|(a, b)| a.is_finite() && b.is_finite());
     // A fraction (`EF 0.35`) is a percentage divided by 100.
     if v > 0.0 && v <= 1.0 {
         v *= 100.0;
@@ -439,7 +453,7 @@ pub fn build(ex: &Extraction, tl: &Timeline, patient: &Patient, trends: &Trends)
     }
     d.bmi = bmi_value(ex, tl);
     d.egfr = egfr_value(ex, tl, patient, trends);
-    d.lvef_category = latest(ex, tl, MeasureConcept::Lvef).map(|m| {
+    d.lvef_category = latest_lvef(ex, tl).map(|m| {
         let mut c = classify_lvef(m);
         improved_note(ex, tl, m, &mut c);
         c

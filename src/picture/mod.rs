@@ -20,6 +20,8 @@ pub mod trends;
 #[cfg(test)]
 pub(crate) mod examples;
 #[cfg(test)]
+mod robustness_tests;
+#[cfg(test)]
 mod schema_tests;
 #[cfg(test)]
 pub(crate) mod testkit;
@@ -95,7 +97,7 @@ pub fn days_from_iso(iso: &str) -> Option<i64> {
     let y: i64 = it.next()?.parse().ok()?;
     let m: i64 = it.next()?.parse().ok()?;
     let d: i64 = it.next()?.get(..2)?.parse().ok()?;
-    if !(1..=12).contains(&m) || !(1..=31).contains(&d) {
+    if !(1..=9999).contains(&y) || !(1..=12).contains(&m) || !(1..=31).contains(&d) {
         return None;
     }
     // Days-from-civil (H. Hinnant's algorithm).

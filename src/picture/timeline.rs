@@ -167,7 +167,9 @@ impl<'a> Timeline<'a> {
         self.ex
             .sections
             .iter()
-            .filter(|s| s.span.start <= start && start < s.span.end.max(s.span.start + 1))
+            .filter(|s| {
+                s.span.start <= start && start < s.span.end.max(s.span.start.saturating_add(1))
+            })
             .max_by_key(|s| s.span.start)
     }
 
@@ -216,7 +218,9 @@ impl<'a> Timeline<'a> {
         start: usize,
         time_ref: Option<TimeRef>,
     ) -> Option<String> {
-        if let Some(d) = own {
+        // Only well-formed ISO dates are used; anything else counts as undated.
+        let valid = |d: &str| super::days_from_iso(d).is_some();
+        if let Some(d) = own.filter(|d| valid(d)) {
             return Some(d.to_string());
         }
         if matches!(
@@ -234,7 +238,8 @@ impl<'a> Timeline<'a> {
             let i = self.episode_unit.iter().position(|&u| u == unit)?;
             // An undated episode has no date of its own.
             self.ex.episodes[i].date.clone()
-        }?;
+        }
+        .filter(|d| valid(d))?;
         if time_ref == Some(TimeRef::Yesterday) {
             let d = super::days_from_iso(&base)?;
             Some(super::iso_from_days(d - 1))
