@@ -220,8 +220,17 @@ fn input(m: &Measurement) -> DerivedInput {
     }
 }
 
+/// A present, current patient value with a finite number; outside blood pressure and heart
+/// rate (where a bare number is the norm) it needs a known unit.
 fn counted(m: &Measurement) -> bool {
-    counts(m.assertion, m.temporality, m.experiencer) == Counts::Present && value(m).is_finite()
+    let unit_ok = m.normalized.is_some()
+        || matches!(
+            m.concept,
+            MeasureConcept::SystolicBp | MeasureConcept::DiastolicBp | MeasureConcept::HeartRate
+        );
+    counts(m.assertion, m.temporality, m.experiencer) == Counts::Present
+        && value(m).is_finite()
+        && unit_ok
 }
 
 /// The key that orders measurements oldest first.

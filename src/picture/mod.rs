@@ -124,6 +124,17 @@ pub fn iso_from_days(z: i64) -> String {
     format!("{y:04}-{m:02}-{d:02}")
 }
 
+/// The first number in a statement value (`72`, `72.5 kg`, `72-73`, `about 72`).
+pub(crate) fn leading_number(v: &str) -> Option<f64> {
+    let start = v.find(|c: char| c.is_ascii_digit())?;
+    let rest = &v[start..];
+    let end = rest
+        .find(|c: char| !(c.is_ascii_digit() || c == '.'))
+        .unwrap_or(rest.len());
+    let n: f64 = rest[..end].trim_end_matches('.').parse().ok()?;
+    n.is_finite().then_some(n)
+}
+
 /// Round for display and notes (the values themselves keep full precision).
 pub fn fmt_num(v: f64, decimals: usize) -> String {
     let s = format!("{v:.decimals$}");
@@ -184,6 +195,15 @@ mod tests {
             counts(Absent, Temporality::Current, Experiencer::Other),
             Counts::No(_)
         ));
+    }
+
+    #[test]
+    fn leading_numbers_of_statement_values() {
+        assert_eq!(leading_number("72"), Some(72.0));
+        assert_eq!(leading_number("about 72.5 kg"), Some(72.5));
+        assert_eq!(leading_number("72-73"), Some(72.0));
+        assert_eq!(leading_number("none"), None);
+        assert_eq!(leading_number(""), None);
     }
 
     #[test]

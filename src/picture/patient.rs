@@ -36,7 +36,10 @@ fn about_patient(s: &Statement) -> bool {
 }
 
 fn parse_age(v: &str) -> Option<u32> {
-    let n: f64 = v.trim().trim_end_matches(['y', 'Y']).trim().parse().ok()?;
+    if v.trim_start().starts_with('-') {
+        return None;
+    }
+    let n = super::leading_number(v)?;
     (n.is_finite() && (0.0..=MAX_AGE).contains(&n)).then_some(n.floor() as u32)
 }
 
@@ -118,6 +121,8 @@ mod tests {
         assert_eq!(p, Patient::default());
         assert_eq!(parse_age("67"), Some(67));
         assert_eq!(parse_age("67y"), Some(67));
+        assert_eq!(parse_age("67 years"), Some(67));
+        assert_eq!(parse_age("-3"), None);
         assert_eq!(parse_sex("M"), Some("male"));
     }
 }

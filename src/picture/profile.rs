@@ -241,7 +241,7 @@ enum Role {
 impl Role {
     /// Whether the mention marks the axis as assessed (chooses the latest assessment).
     fn assesses(self) -> bool {
-        !matches!(self, Role::PulsePressure)
+        !matches!(self, Role::PulsePressure | Role::Effusion)
     }
 }
 
@@ -311,9 +311,20 @@ fn decide_latest(mut mentions: Vec<Mention>, set_aside: &mut Vec<Evidence>) -> V
     mentions.sort_by_key(|m| (m.when, m.start));
     let mut deciding: Vec<Mention> = Vec::new();
     for m in mentions {
-        if m.when != latest {
+        if m.when < latest {
             let mut e = m.ev;
             e.note = format!("earlier assessment, superseded: {}", e.note);
+            set_aside.push(e);
+            continue;
+        }
+        if m.when > latest {
+            // A later item that is not an assessment on its own (an effusion, a pulse
+            // pressure) outside the assessment that decides.
+            let mut e = m.ev;
+            e.note = format!(
+                "outside the latest assessment, not enough on its own: {}",
+                e.note
+            );
             set_aside.push(e);
             continue;
         }
@@ -506,9 +517,14 @@ fn congestion(ex: &Extraction, tl: &Timeline, p: &mut Profile) -> Congestion {
         });
     }
 
+    let any_effusion = mentions.iter().any(|m| m.role == Role::Effusion);
     let deciding = decide_latest(mentions, &mut p.set_aside);
     if deciding.is_empty() {
-        p.congestion_reason = unknown_reason(&not_counted).into();
+        p.congestion_reason = if any_effusion {
+            "effusion-without-overload".into()
+        } else {
+            unknown_reason(&not_counted).into()
+        };
         return Congestion::Unknown;
     }
     let signs: Vec<&Mention> = deciding.iter().filter(|m| m.role == Role::Sign).collect();
@@ -1256,6 +1272,23 @@ mod tests {
         n.present("Effusion", F::PleuralEffusion)
             .absent("JVP not raised", F::RaisedJvp);
         assert_eq!(profile(&n).congestion, Congestion::Dry);
+    }
+
+    #[test]
+    fn a_later_effusion_alone_does_not_replace_the_examination() {
+        let text = "12/11\nOedema to knees.\n13/11\nCXR: small effusion.\n";
+        let mut n = Note::new(text);
+        n.episode("12/11", Some("2026-11-12"))
+            .episode("13/11", Some("2026-11-13"));
+        n.rewind();
+        n.present("Oedema to knees", F::PeripheralEdema)
+            .present("small effusion", F::PleuralEffusion);
+        let p = profile(&n);
+        assert_eq!(p.congestion, Congestion::Wet);
+        assert!(p
+            .set_aside
+            .iter()
+            .any(|e| e.concept == "pleural_effusion" && e.note.starts_with("outside")));
     }
 
     #[test]

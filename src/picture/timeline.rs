@@ -17,9 +17,10 @@
 //! - 1: a measurement marked admission, or any item in a section whose title says admission
 //!   (`On admission`, `Examination on arrival`).
 //! - 2: a measurement marked yesterday; and, when the unit holds more than one examination
-//!   section or one titled discharge, every item before the last examination section that is
-//!   not titled admission (in a discharge summary the history and admission findings come
-//!   before the discharge examination).
+//!   section, or one titled discharge, or discharge medication or advice sections (a
+//!   discharge summary), every item before the last examination section that is not titled
+//!   admission (in a discharge summary the history and admission findings come before the
+//!   discharge examination).
 //! - 3: everything else: the current assessment (today, discharge).
 //!
 //! The later section in the document is taken as the latest unless its title says admission.
@@ -106,6 +107,14 @@ impl<'a> Timeline<'a> {
         let mut adm = vec![0usize; units];
         let mut discharge = vec![false; units];
         for s in &self.ex.sections {
+            if matches!(
+                s.kind,
+                SectionKind::DischargeMedications | SectionKind::DischargeInstructions
+            ) {
+                // A discharge summary: its examination is the discharge examination.
+                discharge[self.unit_of(None, s.header.start)] = true;
+                continue;
+            }
             if !matches!(s.kind, SectionKind::Examination | SectionKind::Objective) {
                 continue;
             }
@@ -345,6 +354,33 @@ mod tests {
             tl.when(None, Some(1), 160, Some(TimeRef::Discharge)).phase,
             3
         );
+    }
+
+    #[test]
+    fn discharge_sections_make_the_examination_the_discharge_examination() {
+        let ex = Extraction {
+            sections: vec![
+                section(SectionKind::History, "History", 0, 100),
+                section(SectionKind::Examination, "Examination", 100, 200),
+                section(
+                    SectionKind::DischargeMedications,
+                    "Discharge medications",
+                    200,
+                    300,
+                ),
+            ],
+            ..Extraction::default()
+        };
+        let tl = Timeline::new(&ex);
+        assert_eq!(tl.when(None, Some(0), 50, None).phase, 2);
+        assert_eq!(tl.when(None, Some(1), 150, None).phase, PHASE_CURRENT);
+        // Without the discharge sections one examination does not split the note.
+        let ex = Extraction {
+            sections: ex.sections[..2].to_vec(),
+            ..Extraction::default()
+        };
+        let tl = Timeline::new(&ex);
+        assert_eq!(tl.when(None, Some(0), 50, None).phase, PHASE_CURRENT);
     }
 
     #[test]

@@ -232,11 +232,8 @@ fn weight(ex: &Extraction, tl: &Timeline) -> WeightTrend {
                 && counts(s.assertion, s.temporality, s.experiencer) == Counts::Present
         })
         .filter_map(|s| {
-            s.value
-                .trim()
-                .parse::<f64>()
-                .ok()
-                .filter(|v| v.is_finite() && *v > 0.0)
+            super::leading_number(&s.value)
+                .filter(|v| *v > 0.0)
                 .map(|v| (s, v))
         })
         .max_by_key(|(s, _)| s.span.start)
