@@ -16,6 +16,10 @@
 //!   history, or words such as "known", "chronic", "worsening", "established" in a heart
 //!   failure statement), and to `acute` otherwise; the source notes the mapping.
 //! - `nyha_class`: `I`..`IV` from roman or arabic numerals or words.
+//!
+//! The type and the NYHA class describe a lasting state: when no current statement gives
+//! them, a historical one about the patient (a past-history section, "NYHA III at baseline")
+//! is used and its source says so. Acuity and volume status are never taken from history.
 //! - `volume_status`: the clinician's own word (`overloaded`, `euvolemic`, `depleted`), even
 //!   when it contradicts the examination (the profile reports that as a conflict).
 
@@ -72,6 +76,30 @@ fn order(tl: &Timeline, s: &Statement) -> (When, usize) {
         s.span.start,
     )
 }
+
+/// The most recent statement of a kind that is present and about the patient but
+/// historical (a past-history section, "at baseline"): used for the type and the NYHA class,
+/// which describe a lasting state, when no current statement exists.
+fn latest_historical<'a, T>(
+    ex: &'a Extraction,
+    tl: &Timeline,
+    kind: StatementKind,
+    norm: impl Fn(&str) -> Option<T>,
+) -> Option<(&'a Statement, T)> {
+    ex.statements
+        .iter()
+        .filter(|s| {
+            s.kind == kind
+                && s.assertion == crate::model::Assertion::Present
+                && s.experiencer == Experiencer::Patient
+                && s.temporality == Temporality::Historical
+        })
+        .filter_map(|s| norm(&s.value).map(|v| (s, v)))
+        .max_by_key(|(s, _)| order(tl, s))
+}
+
+const HISTORICAL_NOTE: &str =
+    "written as history or baseline; used because no current statement gives it";
 
 /// The most recent counted statement of a kind whose value `norm` accepts.
 fn latest<'a, T>(
@@ -180,6 +208,9 @@ pub fn build(ex: &Extraction, tl: &Timeline) -> Classifications {
     if let Some((s, v)) = latest(ex, tl, StatementKind::Nyha, nyha) {
         c.nyha_class = Some(v.into());
         c.sources.nyha_class = Some(stated(s, None));
+    } else if let Some((s, v)) = latest_historical(ex, tl, StatementKind::Nyha, nyha) {
+        c.nyha_class = Some(v.into());
+        c.sources.nyha_class = Some(stated(s, Some(HISTORICAL_NOTE.into())));
     }
     if let Some((s, v)) = latest(ex, tl, StatementKind::VolumeStatus, volume) {
         c.volume_status = Some(v.into());
@@ -208,6 +239,9 @@ pub fn build(ex: &Extraction, tl: &Timeline) -> Classifications {
     if let Some((s, v)) = latest(ex, tl, StatementKind::HfType, hf_type) {
         c.hf_type = Some(v.into());
         c.sources.hf_type = Some(stated(s, None));
+    } else if let Some((s, v)) = latest_historical(ex, tl, StatementKind::HfType, hf_type) {
+        c.hf_type = Some(v.into());
+        c.sources.hf_type = Some(stated(s, Some(HISTORICAL_NOTE.into())));
     } else if let Some(m) = latest_lvef(ex, tl) {
         let cat = classify_lvef(m);
         if let Some(k) = cat.category {
@@ -276,12 +310,28 @@ mod tests {
 
     #[test]
     fn family_historical_and_negated_statements_do_not_classify() {
-        let mut n = Note::new("FH: father HFrEF. Not in acute heart failure. Previously NYHA IV.");
+        let mut n = Note::new("FH: father HFrEF. Not in acute heart failure. Aim NYHA IV never.");
         n.statement("HFrEF", K::HfType, "hfref").experiencer = Experiencer::Other;
         n.statement("acute", K::Acuity, "acute").assertion = Assertion::Absent;
-        n.statement("NYHA IV", K::Nyha, "IV").temporality = Temporality::Historical;
+        n.statement("NYHA IV", K::Nyha, "IV").assertion = Assertion::Hypothetical;
         let c = run(&n);
         assert_eq!(c, Classifications::default());
+    }
+
+    #[test]
+    fn type_and_nyha_fall_back_to_history_acuity_does_not() {
+        let mut n = Note::new("PMH: HFpEF, NYHA III at baseline, admission with acute HF 2024.");
+        n.statement("HFpEF", K::HfType, "hfpef").temporality = Temporality::Historical;
+        n.statement("NYHA III", K::Nyha, "III").temporality = Temporality::Historical;
+        n.statement("acute", K::Acuity, "acute").temporality = Temporality::Historical;
+        let c = run(&n);
+        assert_eq!(c.hf_type.as_deref(), Some("hfpef"));
+        assert!(c.sources.hf_type.unwrap().note.unwrap().contains("history"));
+        assert_eq!(c.nyha_class.as_deref(), Some("III"));
+        assert_eq!(c.acuity, None);
+        // A current statement beats the history.
+        n.state("NYHA II", K::Nyha, "II");
+        assert_eq!(run(&n).nyha_class.as_deref(), Some("II"));
     }
 
     #[test]

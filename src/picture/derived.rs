@@ -260,12 +260,25 @@ pub fn plausible_lvef(m: &Measurement) -> bool {
     v.is_finite() && v > 0.0 && v <= 100.0
 }
 
-/// The latest plausible LVEF of the patient.
+/// The latest plausible LVEF of the patient; a historical one (an echo quoted in the past
+/// history) only when no current one is documented.
 pub fn latest_lvef<'a>(ex: &'a Extraction, tl: &Timeline) -> Option<&'a Measurement> {
-    ex.measurements
-        .iter()
-        .filter(|m| m.concept == MeasureConcept::Lvef && counted(m) && plausible_lvef(m))
+    let lvefs = || {
+        ex.measurements.iter().filter(|m| {
+            m.concept == MeasureConcept::Lvef && plausible_lvef(m) && m.normalized.is_some()
+        })
+    };
+    lvefs()
+        .filter(|m| counted(m))
         .max_by_key(|m| key(tl, m))
+        .or_else(|| {
+            lvefs()
+                .filter(|m| {
+                    m.assertion == crate::model::Assertion::Present
+                        && m.experiencer == crate::model::Experiencer::Patient
+                })
+                .max_by_key(|m| key(tl, m))
+        })
 }
 
 /// Mean arterial pressure estimate.
@@ -464,6 +477,10 @@ pub fn build(ex: &Extraction, tl: &Timeline, patient: &Patient, trends: &Trends)
     d.egfr = egfr_value(ex, tl, patient, trends);
     d.lvef_category = latest_lvef(ex, tl).map(|m| {
         let mut c = classify_lvef(m);
+        if m.temporality == crate::model::Temporality::Historical {
+            c.notes
+                .push("from a past-history value: no current LVEF is documented".into());
+        }
         improved_note(ex, tl, m, &mut c);
         c
     });
