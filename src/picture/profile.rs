@@ -446,6 +446,9 @@ fn congestion(ex: &Extraction, tl: &Timeline, p: &mut Profile) -> Congestion {
                 continue;
             }
         }
+        if !canonical(m).is_finite() {
+            continue;
+        }
         let (raised, reference) = jvp_raised(m);
         let note = format!("JVP {} ({reference})", fmt_num(canonical(m), 1));
         mentions.push(Mention {
@@ -471,22 +474,25 @@ fn congestion(ex: &Extraction, tl: &Timeline, p: &mut Profile) -> Congestion {
         .filter(|s| s.kind == StatementKind::VolumeStatus)
     {
         let when = tl.when(s.episode, s.section, s.span.start, None);
-        let wet = match s.value.as_str() {
+        let stated_wet = match s.value.as_str() {
             "overloaded" => true,
             "euvolemic" | "depleted" => false,
             _ => continue,
         };
-        match counts(s.assertion, s.temporality, s.experiencer) {
-            Counts::Present => {}
-            Counts::Absent | Counts::No(_) => {
-                let why = match counts(s.assertion, s.temporality, s.experiencer) {
+        // "No signs of fluid overload" is a dry statement; a denied euvolaemia or depletion
+        // says nothing definite and is set aside.
+        let (wet, note) = match counts(s.assertion, s.temporality, s.experiencer) {
+            Counts::Present => (stated_wet, format!("stated {}", s.value)),
+            Counts::Absent if stated_wet => (false, "overload denied".to_string()),
+            other => {
+                let why = match other {
                     Counts::No(w) => w,
                     _ => "denied",
                 };
                 not_counted.push(why);
                 p.set_aside.push(ev(
                     "volume_status",
-                    if wet { "wet" } else { "dry" },
+                    if stated_wet { "wet" } else { "dry" },
                     "statement",
                     &s.text,
                     s.span,
@@ -495,7 +501,7 @@ fn congestion(ex: &Extraction, tl: &Timeline, p: &mut Profile) -> Congestion {
                 ));
                 continue;
             }
-        }
+        };
         mentions.push(Mention {
             key: "volume_status".into(),
             when,
@@ -507,7 +513,7 @@ fn congestion(ex: &Extraction, tl: &Timeline, p: &mut Profile) -> Congestion {
                 &s.text,
                 s.span,
                 s.episode,
-                format!("stated {}", s.value),
+                note,
             ),
             role: if wet {
                 Role::StatedSign
@@ -1251,6 +1257,23 @@ mod tests {
         let p = profile(&n);
         assert_eq!(axes(&p), (Congestion::Wet, Perfusion::Cold, "cold-wet"));
         assert_eq!(p.perfusion_reason, "stated");
+    }
+
+    #[test]
+    fn denied_overload_is_a_dry_statement() {
+        // Domain reference 2.2: "no signs of fluid overload" is explicit dry evidence.
+        let mut n = Note::new("No signs of fluid overload.");
+        n.statement("fluid overload", K::VolumeStatus, "overloaded")
+            .assertion = Assertion::Absent;
+        let p = profile(&n);
+        assert_eq!(
+            (p.congestion, p.congestion_reason.as_str()),
+            (Congestion::Dry, "stated")
+        );
+        let mut n = Note::new("Not euvolaemic yet.");
+        n.statement("euvolaemic", K::VolumeStatus, "euvolemic")
+            .assertion = Assertion::Absent;
+        assert_eq!(profile(&n).congestion, Congestion::Unknown);
     }
 
     #[test]
