@@ -135,7 +135,7 @@ pub struct Conflict {
 }
 
 /// The warm/cold wet/dry profile.
-#[derive(Debug, Clone, PartialEq, Serialize, Default)]
+#[derive(Debug, Clone, PartialEq, Serialize)]
 pub struct Profile {
     pub congestion: Congestion,
     pub perfusion: Perfusion,
@@ -153,6 +153,22 @@ pub struct Profile {
     /// Mentions that did not count, each with the reason (another person, historical,
     /// possible, hypothetical, an earlier assessment, superseded by a later mention).
     pub set_aside: Vec<Evidence>,
+}
+
+impl Default for Profile {
+    /// Nothing assessed: both axes and the label unknown.
+    fn default() -> Self {
+        Profile {
+            congestion: Congestion::Unknown,
+            perfusion: Perfusion::Unknown,
+            label: "unknown".into(),
+            evidence: Vec::new(),
+            conflicts: Vec::new(),
+            congestion_reason: "not-assessed".into(),
+            perfusion_reason: "not-assessed".into(),
+            set_aside: Vec::new(),
+        }
+    }
 }
 
 impl Profile {

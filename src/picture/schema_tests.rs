@@ -66,6 +66,14 @@ fn every_example_picture_matches_the_schema() {
 }
 
 #[test]
+fn the_default_picture_matches_the_schema() {
+    let v = serde_json::to_value(super::Picture::default()).unwrap();
+    assert_eq!(v["profile"]["label"], json!("unknown"));
+    let errs = errors(&v);
+    assert!(errs.is_empty(), "{errs:#?}");
+}
+
+#[test]
 fn the_extract_document_carries_the_picture_keys() {
     let n = examples::discharge_summary();
     let ex = n.build();
