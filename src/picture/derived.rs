@@ -694,7 +694,7 @@ mod tests {
         }
         // E03: woman, 80, creatinine 130 umol/L (÷ 88.4) -> 35.9.
         assert!(close(ckd_epi_2021(130.0 / 88.4, 80.0, true), 35.9, 0.05));
-        // The brief's 88.42 gives the same to one decimal.
+        // The factor 88.42 (molar mass 113.10) gives the same to one decimal.
         assert!(close(ckd_epi_2021(130.0 / 88.42, 80.0, true), 35.9, 0.05));
         // E10: KDIGO 2012 category of E02 is G3a.
         assert_eq!(kdigo_category(ckd_epi_2021(1.4, 70.0, false)), "G3a");
