@@ -249,6 +249,21 @@ pub(crate) fn at_line(span: &Span) -> String {
     format!("line {}", span.line)
 }
 
+/// How a picture evidence concept is named in messages (`raised JVP`, `peripheral oedema`).
+pub(crate) fn concept_label(concept: &str) -> String {
+    use crate::model::{FindingConcept, MeasureConcept};
+    if let Some(f) = FindingConcept::from_name(concept) {
+        return f.label().to_string();
+    }
+    if let Some(m) = MeasureConcept::ALL
+        .into_iter()
+        .find(|m| m.name() == concept)
+    {
+        return m.label().to_string();
+    }
+    concept.replace('_', " ")
+}
+
 /// A number written compactly (`71.2`, `5`, `0.35`).
 pub(crate) fn num(v: f64) -> String {
     if v.fract() == 0.0 && v.abs() < 1e9 {

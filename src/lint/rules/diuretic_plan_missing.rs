@@ -81,7 +81,13 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
         let signs: Vec<String> = wet
             .iter()
             .take(4)
-            .map(|e| format!("{} ({})", e.concept.replace('_', " "), at_line(&e.span)))
+            .map(|e| {
+                format!(
+                    "{} ({})",
+                    crate::lint::concept_label(&e.concept),
+                    at_line(&e.span)
+                )
+            })
             .collect();
         message.push_str(&format!(" ({})", signs.join(", ")));
     }
@@ -120,7 +126,7 @@ mod tests {
         let d = wet(Note::new(NOTE)).check(&RULE);
         assert_eq!(d.len(), 1);
         assert!(
-            d[0].message.contains("raised jvp (line 2)"),
+            d[0].message.contains("raised JVP (line 2)"),
             "{}",
             d[0].message
         );

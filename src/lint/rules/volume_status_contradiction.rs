@@ -45,7 +45,13 @@ bedside profile, J Am Coll Cardiol 2003).
 
 fn list(ev: &[Evidence]) -> String {
     ev.iter()
-        .map(|e| format!("{} ({})", e.concept.replace('_', " "), at_line(&e.span)))
+        .map(|e| {
+            format!(
+                "{} ({})",
+                crate::lint::concept_label(&e.concept),
+                at_line(&e.span)
+            )
+        })
         .collect::<Vec<_>>()
         .join(", ")
 }
@@ -147,7 +153,7 @@ mod tests {
         let d = n.check(&RULE);
         assert_eq!(d.len(), 1);
         assert!(
-            d[0].message.contains("raised jvp (line 1)"),
+            d[0].message.contains("raised JVP (line 1)"),
             "{}",
             d[0].message
         );
