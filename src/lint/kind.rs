@@ -63,255 +63,69 @@ pub const MEDICAL: &[DocKind] = &[
 /// How many leading lines count as the header block.
 const HEADER_LINES: usize = 6;
 
-struct Cue {
-    kind: DocKind,
-    /// Lower-case words or phrases, matched on word boundaries.
-    phrase: &'static str,
-    /// Weight when found in the header block; anywhere else it counts a third (rounded down,
-    /// at least 1).
-    weight: u32,
-}
+use DocKind::ProgressNote as Progress;
+use DocKind::{ClinicLetter as Letter, DischargeSummary as Discharge, NursingObs as Nursing};
 
-const CUES: &[Cue] = &[
-    // Discharge summaries.
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "discharge summary",
-        weight: 9,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "discharge letter",
-        weight: 9,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "discharge note",
-        weight: 8,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "date of discharge",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "discharge date",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "discharge diagnosis",
-        weight: 5,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "discharge medications",
-        weight: 4,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "discharge instructions",
-        weight: 4,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "hospital course",
-        weight: 4,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "discharged home",
-        weight: 3,
-    },
-    Cue {
-        kind: DocKind::DischargeSummary,
-        phrase: "tto",
-        weight: 3,
-    },
-    // Clinic letters.
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "dear dr",
-        weight: 8,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "dear doctor",
-        weight: 8,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "dear colleague",
-        weight: 8,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "clinic letter",
-        weight: 9,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "outpatient",
-        weight: 5,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "clinic",
-        weight: 4,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "i saw",
-        weight: 4,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "i reviewed",
-        weight: 3,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "yours sincerely",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "kind regards",
-        weight: 4,
-    },
-    Cue {
-        kind: DocKind::ClinicLetter,
-        phrase: "follow-up visit",
-        weight: 4,
-    },
-    // Nursing observations.
-    Cue {
-        kind: DocKind::NursingObs,
-        phrase: "nursing",
-        weight: 7,
-    },
-    Cue {
-        kind: DocKind::NursingObs,
-        phrase: "nurse",
-        weight: 4,
-    },
-    Cue {
-        kind: DocKind::NursingObs,
-        phrase: "rn",
-        weight: 3,
-    },
-    Cue {
-        kind: DocKind::NursingObs,
-        phrase: "obs chart",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::NursingObs,
-        phrase: "observation chart",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::NursingObs,
-        phrase: "news2",
-        weight: 4,
-    },
-    Cue {
-        kind: DocKind::NursingObs,
-        phrase: "news",
-        weight: 3,
-    },
-    Cue {
-        kind: DocKind::NursingObs,
-        phrase: "night entry",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::NursingObs,
-        phrase: "care plan",
-        weight: 3,
-    },
-    // Progress and ward-round notes.
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "ward round",
-        weight: 8,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "progress note",
-        weight: 9,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "post-take",
-        weight: 8,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "post take",
-        weight: 8,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "wr",
-        weight: 4,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "clerking",
-        weight: 7,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "medical review",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "ward review",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "night review",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "handover",
-        weight: 5,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "consult",
-        weight: 5,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "hospital day",
-        weight: 5,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "admission note",
-        weight: 6,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "icu",
-        weight: 3,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "ccu",
-        weight: 3,
-    },
-    Cue {
-        kind: DocKind::ProgressNote,
-        phrase: "impression",
-        weight: 1,
-    },
+/// `(kind, phrase, weight)`: lower-case words or phrases, matched on word boundaries. The
+/// weight counts in the header block, twice on the title (first non-blank) line, and a third
+/// (rounded down, at least 1) anywhere else.
+const CUES: &[(DocKind, &str, u32)] = &[
+    (Discharge, "discharge summary", 9),
+    (Discharge, "discharge letter", 9),
+    (Discharge, "discharge note", 8),
+    (Discharge, "date of discharge", 6),
+    (Discharge, "discharge date", 6),
+    (Discharge, "discharge diagnosis", 5),
+    (Discharge, "discharge medications", 4),
+    (Discharge, "discharge instructions", 4),
+    (Discharge, "hospital course", 4),
+    (Discharge, "discharged home", 3),
+    (Discharge, "tto", 3),
+    (Letter, "dear dr", 8),
+    (Letter, "dear doctor", 8),
+    (Letter, "dear colleague", 8),
+    (Letter, "clinic letter", 9),
+    (Letter, "outpatient", 5),
+    (Letter, "clinic", 4),
+    (Letter, "i saw", 4),
+    (Letter, "i reviewed", 3),
+    (Letter, "yours sincerely", 6),
+    (Letter, "kind regards", 4),
+    (Letter, "follow-up visit", 4),
+    // The author's role qualifies a note type ("nursing progress note").
+    (Nursing, "nursing progress note", 14),
+    (Nursing, "nursing note", 12),
+    (Nursing, "nursing entry", 12),
+    (Nursing, "nursing", 5),
+    (Nursing, "nurse", 4),
+    (Nursing, "rn", 3),
+    (Nursing, "obs chart", 6),
+    (Nursing, "observation chart", 6),
+    (Nursing, "news2", 4),
+    (Nursing, "news", 3),
+    (Nursing, "night entry", 6),
+    (Nursing, "care plan", 3),
+    (Progress, "ward round", 8),
+    (Progress, "progress note", 9),
+    (Progress, "post-take", 8),
+    (Progress, "post take", 8),
+    (Progress, "wr", 4),
+    (Progress, "ptwr", 8),
+    (Progress, "clerking", 7),
+    (Progress, "medical review", 6),
+    (Progress, "ward review", 6),
+    (Progress, "night review", 6),
+    (Progress, "handover", 5),
+    (Progress, "consult", 5),
+    (Progress, "hospital day", 5),
+    (Progress, "admission note", 6),
+    (Progress, "physician note", 6),
+    (Progress, "history and physical", 7),
+    (Progress, "h&p", 6),
+    (Progress, "emergency department", 4),
+    (Progress, "icu", 3),
+    (Progress, "ccu", 3),
+    (Progress, "impression", 1),
 ];
 
 /// Whether `phrase` occurs in `hay` (both lower case) on word boundaries.
@@ -346,14 +160,17 @@ pub fn detect(text: &str, ex: &Extraction) -> DocKind {
         .map(|(i, _)| i)
         .unwrap_or(lower.len());
     let header = &lower[..header_end];
+    let title = header.lines().find(|l| !l.trim().is_empty()).unwrap_or("");
     let body = &lower[header_end..];
     let mut score = [0u32; 5];
     let slot = |k: DocKind| DocKind::ALL.iter().position(|x| *x == k).unwrap_or(4);
-    for cue in CUES {
-        if has_phrase(header, cue.phrase) {
-            score[slot(cue.kind)] += cue.weight;
-        } else if has_phrase(body, cue.phrase) {
-            score[slot(cue.kind)] += (cue.weight / 3).max(1);
+    for &(kind, phrase, weight) in CUES {
+        if has_phrase(title, phrase) {
+            score[slot(kind)] += weight * 2;
+        } else if has_phrase(header, phrase) {
+            score[slot(kind)] += weight;
+        } else if has_phrase(body, phrase) {
+            score[slot(kind)] += (weight / 3).max(1);
         }
     }
     for s in &ex.sections {
@@ -442,6 +259,20 @@ mod tests {
         assert_eq!(
             kind("Post-take WR\nImp: decompensated HF\n"),
             DocKind::ProgressNote
+        );
+        assert_eq!(kind("PTWR  Cons: Dr A\nImp: CCF\n"), DocKind::ProgressNote);
+        // The title line outweighs a passing mention of nursing staff below it.
+        assert_eq!(
+            kind("Medical WR Sat\nBed 2.\nMore confused per nursing staff.\n"),
+            DocKind::ProgressNote
+        );
+    }
+
+    #[test]
+    fn the_author_role_qualifies_the_note_type() {
+        assert_eq!(
+            kind("Nursing progress note - Ward 9\nPt comfortable overnight.\n"),
+            DocKind::NursingObs
         );
     }
 
