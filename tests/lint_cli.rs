@@ -104,6 +104,12 @@ fn config_is_found_upwards_and_errors_name_the_nearest_key() {
     assert!(e.contains("lint.rules.weight-mising"), "{e}");
     assert!(e.contains("did you mean \"weight-missing\""), "{e}");
 
+    // The file next to the input (or above it) is found from any working directory.
+    let elsewhere = tempdir("config-cwd");
+    let note = sub.join("note.txt");
+    let o = run_in(&elsewhere, &["lint", note.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", stderr(&o));
+
     // A good file is used; --config wins over the one found by search.
     std::fs::write(dir.join("tidemark.toml"), "[lint]\nfail-on = \"never\"\n").unwrap();
     let o = run_in(&sub, &["lint", "note.txt"]);

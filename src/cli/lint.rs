@@ -22,14 +22,35 @@ use crate::lint::config::{nearest, FailOn};
 use crate::lint::{docs, find_rule, registry};
 use crate::render;
 
-/// The configuration for a lint run: `--config PATH`, else the nearest `tidemark.toml` from
-/// the current directory upwards, else the defaults; then the command-line options.
+/// The directory of the first input named (itself when it is a directory), if it exists.
+fn first_input_dir(paths: &[String]) -> Option<PathBuf> {
+    let p = std::path::Path::new(paths.iter().find(|p| p.as_str() != "-")?);
+    let dir = if p.is_dir() {
+        p.to_path_buf()
+    } else {
+        p.parent()?.to_path_buf()
+    };
+    let dir = if dir.as_os_str().is_empty() {
+        PathBuf::from(".")
+    } else {
+        dir
+    };
+    std::fs::canonicalize(dir).ok()
+}
+
+/// The configuration for a lint run: `--config PATH`, else the nearest `tidemark.toml` next
+/// to the first input or in a parent of its directory, else the nearest from the current
+/// directory upwards, else the defaults; then the command-line options.
 pub fn load_config(args: &LintArgs) -> Result<Config, String> {
     let path: Option<PathBuf> = match &args.config {
         Some(p) => Some(PathBuf::from(p)),
-        None => std::env::current_dir()
-            .ok()
-            .and_then(|d| find_config_file(&d)),
+        None => first_input_dir(&args.common.paths)
+            .and_then(|d| find_config_file(&d))
+            .or_else(|| {
+                std::env::current_dir()
+                    .ok()
+                    .and_then(|d| find_config_file(&d))
+            }),
     };
     let mut config = match path {
         Some(p) => Config::load(&p).map_err(|e| e.to_string())?,

@@ -69,7 +69,15 @@ fn default_words(e: DischargeElement) -> &'static [&'static str] {
         DischargeElement::DietFluid => &[
             "salt", "sodium", "fluid*", "diet*", "drink*", "litre*", "liter*", "low-salt",
         ],
-        DischargeElement::WeightMonitoring => &["weigh*", "daily weight*", "scale*"],
+        DischargeElement::WeightMonitoring => &[
+            "weigh",
+            "weighing",
+            "weigh yourself",
+            "daily weight*",
+            "weight daily",
+            "weights daily",
+            "scales",
+        ],
         DischargeElement::FollowUp => &[
             "follow-up",
             "follow up",
@@ -226,6 +234,17 @@ mod tests {
             "heart failure",
         );
         assert!(n.check(&RULE).is_empty());
+    }
+
+    #[test]
+    fn a_discharge_weight_is_not_weight_monitoring_advice() {
+        let text = PARTIAL.replace("Furosemide", "Discharge weight 70.3 kg. Furosemide");
+        let d = note(&text).check(&RULE);
+        assert!(
+            d[0].message.contains("daily weight monitoring"),
+            "{}",
+            d[0].message
+        );
     }
 
     #[test]
