@@ -367,3 +367,97 @@ mod tests {
         assert!(!tuned.iter().any(|d| d.rule == "hf-type-unspecified"));
     }
 }
+
+#[cfg(test)]
+mod prop {
+    use super::*;
+    use crate::model::*;
+    use proptest::prelude::*;
+
+    const UNITS: [Option<&str>; 8] = [
+        None,
+        Some("kg"),
+        Some("[lb_av]"),
+        Some("Cel"),
+        Some("[degF]"),
+        Some("mg/dL"),
+        Some("umol/L"),
+        Some("%"),
+    ];
+    const KINDS: [StatementKind; 6] = [
+        StatementKind::HeartFailure,
+        StatementKind::HfType,
+        StatementKind::Acuity,
+        StatementKind::VolumeStatus,
+        StatementKind::Nyha,
+        StatementKind::LvFunction,
+    ];
+
+    fn span(start: usize, len: usize) -> crate::span::Span {
+        crate::span::Span {
+            start,
+            end: start + len,
+            line: (start % 7) as u32,
+            column: 1,
+            end_line: (start % 5) as u32,
+            end_column: 2,
+        }
+    }
+
+    proptest! {
+        // Arbitrary, inconsistent hand-built models (NaN values, spans outside the text,
+        // nonsense dates) never make a rule panic.
+        #[test]
+        fn rules_never_panic(
+            text in "(\\PC|\n){0,60}",
+            ms in proptest::collection::vec(
+                (0usize..20, proptest::num::f64::ANY, 0usize..8, any::<bool>(), 0usize..90,
+                 0usize..10, "[0-9-]{0,12}"),
+                0..12),
+            ss in proptest::collection::vec((0usize..6, "[a-z_]{0,10}", 0usize..90), 0..6),
+            meds in proptest::collection::vec((0usize..12, any::<bool>(), 0usize..90), 0..4),
+        ) {
+            let mut ex = Extraction::default();
+            for (c, v, u, inferred, start, len, date) in ms {
+                let concept = MeasureConcept::ALL[c];
+                let unit = UNITS[u];
+                ex.measurements.push(Measurement {
+                    concept, value: v, unit,
+                    normalized: unit.map(|_| Quantity { value: v, unit: concept.canonical_unit() }),
+                    unit_inferred: inferred, date: Some(date), time: None,
+                    assertion: Assertion::Present, temporality: Temporality::Current,
+                    experiencer: Experiencer::Patient, time_ref: None, range: None,
+                    qualifier: None, unit_text: None, text: "x1".into(), span: span(start, len),
+                    section: None, episode: Some(start % 3),
+                });
+            }
+            for (k, value, start) in ss {
+                ex.statements.push(Statement {
+                    kind: KINDS[k], value, assertion: Assertion::Present,
+                    temporality: Temporality::Current, experiencer: Experiencer::Patient,
+                    text: "s".into(), span: span(start, 3), section: Some(start % 4), episode: None,
+                });
+            }
+            let classes = [DrugClass::LoopDiuretic, DrugClass::ThiazideDiuretic, DrugClass::Mra,
+                DrugClass::AceInhibitor, DrugClass::Arb, DrugClass::Arni, DrugClass::BetaBlocker,
+                DrugClass::Sglt2Inhibitor, DrugClass::Digoxin, DrugClass::Anticoagulant,
+                DrugClass::PotassiumSupplement, DrugClass::Other];
+            for (c, changed, start) in meds {
+                ex.medications.push(Medication {
+                    drug: "d".into(), class: classes[c], dose: None, unit: None, route: None,
+                    frequency: None, per_day: None,
+                    change: changed.then_some(MedChange::Continued),
+                    assertion: Assertion::Present, text: "d".into(), span: span(start, 1),
+                    section: Some(start % 5),
+                });
+            }
+            ex.sections.push(Section {
+                kind: SectionKind::Plan, title: "Plan".into(), header: span(3, 4),
+                span: span(50, 200),
+            });
+            let mut pic = Picture::default();
+            pic.profile.congestion = crate::picture::Congestion::Wet;
+            let _ = run(&text, &ex, &pic, &LintConfig::default());
+        }
+    }
+}

@@ -281,3 +281,37 @@ mod tests {
         );
     }
 }
+
+#[cfg(test)]
+mod prop {
+    use super::*;
+    use crate::span::Span;
+    use proptest::prelude::*;
+
+    proptest! {
+        // Bad spans (past the end, reversed, inside a character, wrong line numbers) never
+        // make the renderer panic.
+        #[test]
+        fn any_span_renders(text in "(\\PC|\n|\r){0,80}", start in 0usize..120, len in 0usize..40,
+                            line in 0u32..12, col in 0u32..90, end_line in 0u32..12) {
+            let d = Diagnostic {
+                rule: "unit-missing",
+                severity: Severity::Info,
+                category: "units",
+                message: "m".into(),
+                query: Some("q".into()),
+                span: Some(Span {
+                    start,
+                    end: start + len,
+                    line,
+                    column: col,
+                    end_line,
+                    end_column: col + 1,
+                }),
+                fix: None,
+            };
+            let _ = header("x", &d, false);
+            let _ = body(Some(&text), &d, false);
+        }
+    }
+}
