@@ -68,7 +68,14 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
             quote(&t.text),
             code_and_title(&format!("{fam}0")),
         ),
-        _ => format!(
+        (Some(t), None) => format!(
+            "Heart failure is documented as \"{}\" without an acuity. Which subcategory this \
+             type codes to is for the coder to decide (for improved EF it depends on the current \
+             EF); in each of I50.2-, I50.3- and I50.4- the fifth character needs the acuity: \
+             1 acute, 2 chronic, 3 acute on chronic ({EDITION}).",
+            quote(&t.text),
+        ),
+        (None, _) => format!(
             "Heart failure is named (\"{}\") without an acuity (acute, chronic, acute on \
              chronic). As written the note supports only {} ({EDITION}); a specific code in \
              I50.2x-I50.4x needs both the type and the acuity documented.",
@@ -113,6 +120,14 @@ mod tests {
         let n = Note::new("Known CCF.\n").stmt(StatementKind::HeartFailure, "", "CCF");
         let d = n.check(&RULE);
         assert!(d[0].message.contains("I50.9 Heart failure, unspecified"));
+    }
+
+    #[test]
+    fn an_improved_ef_type_leaves_the_subcategory_to_the_coder() {
+        let n = Note::new("Known HFimpEF.\n").stmt(StatementKind::HfType, "hfimpef", "HFimpEF");
+        let d = n.check(&RULE);
+        assert!(d[0].message.contains("fifth character"), "{}", d[0].message);
+        assert!(!d[0].message.contains("I50.9"), "{}", d[0].message);
     }
 
     #[test]

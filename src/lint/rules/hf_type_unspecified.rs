@@ -20,8 +20,9 @@ const DOC: &str = "\
 ## What
 Fires when heart failure is named (HF, CCF, CHF, heart failure, decompensated HF ...) and no
 type is stated: not HFrEF / systolic, HFmrEF, HFpEF / diastolic, combined, nor HFimpEF.
-With no LVEF in the note either it is a warning. When an LVEF value is documented but no type
-is written, it still fires, at info: an EF number alone does not document the type for coding,
+With no LVEF in the note either it is a warning. When an LVEF value (or only a qualitative
+description such as \"severely impaired LV function\") is documented but no type is written,
+it still fires, at info: an EF number alone does not document the type for coding,
 and the message says which LVEF category the number falls in so the coder can decide whether
 to query. The message names what documentation would allow a code in I50.2- (systolic),
 I50.3- (diastolic) or I50.4- (combined) and offers a neutral, non-leading query.
@@ -102,15 +103,31 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
     let families = "A code in I50.2- (systolic, or reduced ejection fraction), I50.3- \
                     (diastolic, or preserved ejection fraction) or I50.4- (combined systolic \
                     and diastolic) needs the clinician to document the type.";
-    let mut d = match latest_lvef(cx) {
-        None => RULE.diag(
+    let lv_words = statements(cx.ex, StatementKind::LvFunction).last().copied();
+    let mut d = match (latest_lvef(cx), lv_words) {
+        (None, Some(lv)) => {
+            let mut d = RULE.diag(
+                format!(
+                    "Heart failure is named (\"{named}\") without a stated type. LV function is \
+                     described (\"{}\", {}) but a description alone does not document the \
+                     type for coding: as written the note supports only {unspecified} \
+                     ({EDITION}). {families}",
+                    quote(&lv.text),
+                    at_line(&lv.span),
+                ),
+                Some(hf.span),
+            );
+            d.severity = Severity::Info;
+            d
+        }
+        (None, None) => RULE.diag(
             format!(
                 "Heart failure is named (\"{named}\") without a type, and no LVEF is given. As \
                  written the note supports only {unspecified} ({EDITION}). {families}"
             ),
             Some(hf.span),
         ),
-        Some(ef) => {
+        (Some(ef), _) => {
             let suggests = match lvef_category(ef) {
                 Some(c) => format!("which is in the {c} range"),
                 None => "which spans two LVEF categories".to_string(),
@@ -178,6 +195,24 @@ mod tests {
         // Universal Definition 2021: <= 40 % is reduced.
         assert!(d[0].message.contains("reduced range"), "{}", d[0].message);
         assert!(d[0].query.as_deref().unwrap().contains("LVEF 30% (line 1)"));
+    }
+
+    #[test]
+    fn a_qualitative_lv_description_fires_as_info() {
+        let n = Note::new("CCF. Severely impaired LV function.\n")
+            .stmt(StatementKind::HeartFailure, "", "CCF")
+            .stmt(
+                StatementKind::LvFunction,
+                "severe",
+                "Severely impaired LV function",
+            );
+        let d = n.check(&RULE);
+        assert_eq!(d[0].severity, Severity::Info);
+        assert!(
+            d[0].message.contains("LV function is described"),
+            "{}",
+            d[0].message
+        );
     }
 
     #[test]

@@ -68,10 +68,11 @@ pub(crate) fn patient_values(ex: &Extraction, concept: MeasureConcept) -> Vec<&M
     v
 }
 
-/// Whether the note is about a heart-failure patient: heart failure named or typed, or an
-/// LVEF or natriuretic peptide measured.
+/// Whether the note is about a heart-failure patient: heart failure named or typed, a NYHA
+/// class stated, or an LVEF or natriuretic peptide measured.
 pub(crate) fn hf_relevant(ex: &Extraction) -> bool {
     super::hf_mention(ex).is_some()
+        || !super::statements(ex, crate::model::StatementKind::Nyha).is_empty()
         || ex.measurements.iter().any(|m| {
             matches!(
                 m.concept,
