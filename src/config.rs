@@ -122,8 +122,8 @@ impl Config {
         let text = std::fs::read_to_string(path)
             .map_err(|e| err("", format!("cannot read {}: {e}", path.display())))?;
         Self::from_toml_str(&text).map_err(|e| ConfigError {
-            key: e.key,
-            message: format!("{}: {}", path.display(), e.message),
+            key: String::new(),
+            message: format!("{}: {e}", path.display()),
         })
     }
 }
@@ -178,5 +178,18 @@ mod tests {
         std::fs::write(base.join(CONFIG_FILE), "[lint]\n").unwrap();
         assert_eq!(find_config_file(&deep), Some(base.join(CONFIG_FILE)));
         std::fs::remove_dir_all(&base).unwrap();
+    }
+}
+
+#[cfg(test)]
+mod example_tests {
+    use super::*;
+
+    #[test]
+    fn the_documented_example_file_parses() {
+        let path = concat!(env!("CARGO_MANIFEST_DIR"), "/docs/tidemark.example.toml");
+        let c = Config::load(Path::new(path)).unwrap();
+        assert_eq!(c.lint.rule("weight-missing").severity, Some(crate::lint::Severity::Error));
+        assert_eq!(c.lint.thresholds.weight_gain_days, 3);
     }
 }
