@@ -189,7 +189,10 @@ mod example_tests {
     fn the_documented_example_file_parses() {
         let path = concat!(env!("CARGO_MANIFEST_DIR"), "/docs/tidemark.example.toml");
         let c = Config::load(Path::new(path)).unwrap();
-        assert_eq!(c.lint.rule("weight-missing").severity, Some(crate::lint::Severity::Error));
+        assert_eq!(
+            c.lint.rule("weight-missing").severity,
+            Some(crate::lint::Severity::Error)
+        );
         assert_eq!(c.lint.thresholds.weight_gain_days, 3);
     }
 }

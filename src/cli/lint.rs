@@ -172,6 +172,7 @@ pub fn rules(args: &RulesArgs) -> i32 {
                     r.summary
                 ));
             }
+            text.push_str(&format!("\n{}\n", render::CAUTION));
         }
         RulesFormat::Json => {
             let list: Vec<serde_json::Value> = registry()
@@ -196,7 +197,7 @@ pub fn rules(args: &RulesArgs) -> i32 {
 /// `tidemark explain ID`.
 pub fn explain(args: &ExplainArgs) -> i32 {
     match find_rule(&args.id) {
-        Some(r) => print_or_fail(&docs::explain(r)),
+        Some(r) => print_or_fail(&format!("{}\n{}\n", docs::explain(r), render::CAUTION)),
         None => {
             let ids: Vec<&str> = registry().iter().map(|r| r.id).collect();
             match nearest(&args.id, &ids) {
