@@ -26,9 +26,9 @@ element list and extra wording for each element are set in `tidemark.toml` under
 `[lint.discharge]`. Only discharge summaries are checked.
 
 ## Why
-These six elements are what a patient going home with heart failure needs written down, and
-their absence is a documented driver of early readmission. They were the content of a
-long-standing national discharge-instructions quality measure.
+These six elements are what a patient going home with heart failure needs written down; they
+were the content of a long-standing US national discharge-instructions quality measure.
+Missing instructions are commonly linked to early readmission.
 
 ## Fires
 ```text
@@ -44,9 +44,10 @@ weight rises more than 2 kg in 3 days or breathing worsens, call the HF nurse. H
 ```
 
 ## Sources
-Elements: The Joint Commission heart-failure measure HF-1, discharge instructions (activity,
-diet, discharge medications, follow-up, weight monitoring, what to do if symptoms worsen;
-from memory, the measure set is retired). Readmission link: common practice, no source.
+Elements: The Joint Commission / CMS Specifications Manual for National Hospital Inpatient
+Quality Measures, HF-1 discharge instructions (v2010A1): activity level, diet, discharge
+medications, follow-up appointment, weight monitoring, what to do if symptoms worsen (the
+measure is retired). Readmission link: common practice, no source.
 ";
 
 /// Default wording that counts for each element (lower case; a trailing `*` matches a prefix).

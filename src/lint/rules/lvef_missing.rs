@@ -40,8 +40,9 @@ Discharge summary. Admitted with decompensated heart failure. Echo: LVEF 30%.
 ```
 
 ## Sources
-LV function assessment as a discharge measure: The Joint Commission HF-2 (from memory; the
-measure set is retired). LVEF categories: Universal Definition of HF 2021; 2022 AHA/ACC/HFSA
+LV function assessment as a discharge measure: The Joint Commission / CMS Specifications
+Manual for National Hospital Inpatient Quality Measures, HF-2 data element \"LVF Assessment\"
+(v2010B; retired). LVEF categories: Universal Definition of HF 2021; 2022 AHA/ACC/HFSA
 guideline.
 ";
 

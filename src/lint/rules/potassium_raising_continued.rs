@@ -24,7 +24,7 @@ reduced or switched anywhere in the note. One diagnostic per drug. The threshold
 `tidemark.toml` (`[lint.thresholds] potassium-high`).
 
 ## Why
-Hyperkalaemia is the commonest reason these drugs must be reduced or paused, and a note that
+Hyperkalaemia is a common reason these drugs are reduced or paused, and a note that
 lists them as unchanged beside a high potassium reads as an oversight even when it is a
 deliberate decision. The rule asks for the decision to be written, not for any particular
 one; it never suggests starting or stopping a drug.
@@ -40,8 +40,9 @@ K 5.9. Spironolactone held, ramipril reduced to 2.5 mg. Recheck U&E tomorrow.
 ```
 
 ## Sources
-Threshold: MRA guidance to halve the dose above 5.5 mmol/L and stop above 6.0 mmol/L in the
-2021 ESC heart failure guideline's practical advice (from memory; tune locally).
+Threshold: the ESC heart failure guidelines' practical advice on MRAs, to halve the dose
+above 5.5 mmol/L and stop above 6.0 mmol/L (from memory; tune locally). That these drug
+classes raise potassium: common practice, no source.
 ";
 
 fn raises_potassium(c: DrugClass) -> bool {

@@ -40,7 +40,9 @@ Night entry. Known heart failure. No ankle oedema, chest clear. Obs stable.
 ```
 
 ## Sources
-Congestion signs: Nohria A, et al. J Am Coll Cardiol 2003;41:1797-1804 (bedside profiles).
+Bedside profiles: Nohria A, Tsang SW, Fang JC, et al. Clinical assessment identifies
+hemodynamic profiles that predict outcomes in patients admitted with heart failure. J Am
+Coll Cardiol 2003;41:1797-1804. The exact list of congestion signs: common practice.
 ";
 
 fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {

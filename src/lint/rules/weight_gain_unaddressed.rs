@@ -41,9 +41,9 @@ reader most needs to see.
 ```
 
 ## Sources
-More than 2 kg in 3 days: Heart Failure Association of the ESC patient advice
-(heartfailurematters.org), the same figure as the ESC self-care advice (from memory). A litre
-of fluid weighs about a kilogram: common practice.
+More than 2 kg in 3 days: European Society of Cardiology, Heart Failure Association, patient
+information website, page \"Weight gain\". A litre of fluid weighs about a kilogram: common
+practice.
 ";
 
 fn addressed(cx: &Ctx<'_>) -> bool {
