@@ -205,6 +205,26 @@ impl Note {
     }
 }
 
+impl Note {
+    /// What a user sees for these diagnostics: the human blocks, then the JSON diagnostics,
+    /// for snapshot tests.
+    pub fn rendered(&self, diags: &[Diagnostic]) -> String {
+        let mut s = String::new();
+        for d in diags {
+            s.push_str(&crate::render::lint_human::block(
+                "note.txt",
+                Some(&self.text),
+                d,
+                false,
+            ));
+            s.push_str("\n\n");
+        }
+        s.push_str(&serde_json::to_string_pretty(diags).unwrap_or_default());
+        s.push('\n');
+        s
+    }
+}
+
 /// Canonical-unit conversion for the units the tests use. Factors: lb x 0.45359237 (exact,
 /// 1959 international yard and pound agreement); (°F - 32) x 5/9; creatinine mg/dL x 88.4
 /// (molar mass 113.12 g/mol); haemoglobin g/dL x 10.

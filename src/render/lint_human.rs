@@ -180,6 +180,17 @@ impl Tally {
     }
 }
 
+/// One diagnostic's block: header line, then snippet, query and fix lines.
+pub fn block(source: &str, text: Option<&str>, d: &Diagnostic, color: bool) -> String {
+    let mut s = header(source, d, color);
+    let b = body(text, d, color);
+    if !b.is_empty() {
+        s.push('\n');
+        s.push_str(&b);
+    }
+    s
+}
+
 /// Write the whole run.
 pub fn write<W: Write>(
     out: &mut W,
@@ -197,12 +208,11 @@ pub fn write<W: Write>(
         }
         let Some(a) = analysis else { continue };
         for d in &a.diagnostics {
-            writeln!(out, "{}", header(&doc.source, d, opts.color))?;
-            let b = body(doc.text.as_deref(), d, opts.color);
-            if !b.is_empty() {
-                writeln!(out, "{b}")?;
-            }
-            writeln!(out)?;
+            writeln!(
+                out,
+                "{}\n",
+                block(&doc.source, doc.text.as_deref(), d, opts.color)
+            )?;
         }
     }
     writeln!(out, "{}", Tally::of(docs).line())?;

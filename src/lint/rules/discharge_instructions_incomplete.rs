@@ -212,6 +212,7 @@ mod tests {
     #[test]
     fn lists_every_missing_element() {
         let d = note(PARTIAL).check(&RULE);
+        insta::assert_snapshot!(note(PARTIAL).rendered(&d));
         assert_eq!(d.len(), 1);
         let m = &d[0].message;
         for label in [

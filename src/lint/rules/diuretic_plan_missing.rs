@@ -123,7 +123,9 @@ mod tests {
 
     #[test]
     fn fires_when_wet_without_a_diuretic() {
-        let d = wet(Note::new(NOTE)).check(&RULE);
+        let n = wet(Note::new(NOTE));
+        let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 1);
         assert!(
             d[0].message.contains("raised JVP (line 2)"),

@@ -64,7 +64,7 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
         (Some(t), Some(fam)) => format!(
             "Heart failure is documented as \"{}\" without an acuity. As written this supports \
              only {} ({EDITION}); {fam}1 (acute), {fam}2 (chronic) or {fam}3 (acute on \
-             chronic) needs the clinician to document the acuity.",
+             chronic) need the clinician to document the acuity.",
             quote(&t.text),
             code_and_title(&format!("{fam}0")),
         ),
@@ -99,6 +99,7 @@ mod tests {
             .stmt(StatementKind::HeartFailure, "", "HFrEF")
             .stmt(StatementKind::HfType, "hfref", "HFrEF");
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 1);
         // ICD-10-CM FY2026: I50.20 Unspecified systolic (congestive) heart failure.
         assert!(

@@ -190,6 +190,7 @@ mod tests {
             .stmt(StatementKind::HeartFailure, "", "CCF")
             .meas(MeasureConcept::Lvef, 30.0, Some("%"), "LVEF 30%");
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 1);
         assert_eq!(d[0].severity, Severity::Info);
         // Universal Definition 2021: <= 40 % is reduced.

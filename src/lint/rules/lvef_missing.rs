@@ -92,6 +92,7 @@ mod tests {
     fn fires_without_lvef_or_type() {
         let n = Note::new(DS).stmt(StatementKind::HeartFailure, "", "heart failure");
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 1);
         assert_eq!(d[0].severity, Severity::Warning);
     }

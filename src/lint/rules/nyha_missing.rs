@@ -69,7 +69,9 @@ mod tests {
     #[test]
     fn fires_in_a_clinic_letter_without_nyha() {
         let n = Note::new(LETTER).stmt(StatementKind::HeartFailure, "", "heart failure");
-        assert_eq!(n.check(&RULE).len(), 1);
+        let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
+        assert_eq!(d.len(), 1);
     }
 
     #[test]

@@ -142,6 +142,7 @@ mod tests {
             )
             .med("bisoprolol", DrugClass::BetaBlocker, None, "bisoprolol");
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 2, "{d:?}");
         assert!(d[0].message.contains("an MRA"), "{}", d[0].message);
     }

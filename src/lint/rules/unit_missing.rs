@@ -109,6 +109,7 @@ mod tests {
             .meas_inferred(MeasureConcept::Temperature, 36.8, "Cel", "T 36.8")
             .meas_inferred(MeasureConcept::Creatinine, 188.0, "umol/L", "Cr 188");
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 3);
         assert!(d[1].message.contains("36.8 °C"), "{}", d[1].message);
         let fix = d[0].fix.as_ref().unwrap();

@@ -122,6 +122,7 @@ mod tests {
                 "weight 176 lb",
             );
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 1);
         assert_eq!(d[0].span.unwrap().line, 2);
         assert!(d[0].message.contains("imperial"), "{}", d[0].message);

@@ -188,6 +188,7 @@ mod tests {
             .meas(MeasureConcept::SystolicBp, 80.0, Some("mm[Hg]"), "80")
             .meas(MeasureConcept::DiastolicBp, 95.0, Some("mm[Hg]"), "95");
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 2, "{d:?}");
         assert!(d[0].message.contains("3-80 /min"), "{}", d[0].message);
         assert!(d[1].message.contains("not below"), "{}", d[1].message);

@@ -151,6 +151,7 @@ mod tests {
             })
         });
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 1);
         assert!(
             d[0].message.contains("raised JVP (line 1)"),

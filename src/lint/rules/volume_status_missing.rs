@@ -96,7 +96,9 @@ mod tests {
             Assertion::Absent,
             "SOB",
         );
-        assert_eq!(n.check(&RULE).len(), 1);
+        let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
+        assert_eq!(d.len(), 1);
         // A questioned sign is not an assessment either.
         let n = base("Known heart failure. ?crackles.\n").finding(
             FindingConcept::Crackles,

@@ -131,6 +131,7 @@ mod tests {
             (82.1, "2026-03-04", "Wt 82.1 kg"),
         );
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 1);
         assert!(
             d[0].message.contains("2.1 kg in 3 days"),

@@ -77,6 +77,7 @@ mod tests {
             "HFrEF",
         );
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 1);
         assert_eq!(d[0].span.unwrap().line, 1);
     }

@@ -82,6 +82,7 @@ mod tests {
             .meas(MeasureConcept::Weight, 81.1, Some("kg"), "81.1")
             .meas(MeasureConcept::Weight, 80.4, Some("kg"), "80.4 kg");
         let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
         assert_eq!(d.len(), 1);
         assert!(d[0].message.starts_with("3 different"), "{}", d[0].message);
     }
