@@ -34,6 +34,8 @@ pub use picture::Picture;
 pub struct Analysis {
     pub extraction: Extraction,
     pub picture: Picture,
+    /// The document kind the linter detected.
+    pub kind: lint::DocKind,
     pub diagnostics: Vec<lint::Diagnostic>,
 }
 
@@ -41,10 +43,12 @@ pub struct Analysis {
 pub fn analyze(text: &str, config: &Config) -> Analysis {
     let extraction = extract::extract(text, &config.extract);
     let picture = picture::build(&extraction);
-    let diagnostics = lint::run(text, &extraction, &picture);
+    let kind = lint::kind::detect(text, &extraction);
+    let diagnostics = lint::run(text, &extraction, &picture, &config.lint);
     Analysis {
         extraction,
         picture,
+        kind,
         diagnostics,
     }
 }

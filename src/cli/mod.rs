@@ -5,6 +5,7 @@
 
 pub mod extract;
 pub mod inputs;
+pub mod lint;
 
 use clap::{Parser, Subcommand, ValueEnum};
 
@@ -24,6 +25,80 @@ pub struct Cli {
 pub enum Command {
     /// Extract measurements, findings and the clinical picture from notes.
     Extract(ExtractArgs),
+    /// Lint notes for missing or inconsistent heart-failure documentation.
+    ///
+    /// Exit codes: 0 nothing at or above --fail-on; 1 diagnostics at or above it; 2 usage,
+    /// configuration or output error; 3 otherwise, some input was skipped.
+    Lint(LintArgs),
+    /// List the lint rules (id, category, default severity, summary).
+    Rules(RulesArgs),
+    /// Print the full documentation of one lint rule.
+    Explain(ExplainArgs),
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum LintFormat {
+    /// Diagnostics with the source line underlined, a summary and the caution.
+    Human,
+    /// One `tidemark-lint/1` JSON object for the whole run.
+    Json,
+    /// One JSON object per document, one per line.
+    Jsonl,
+    /// A SARIF 2.1.0 log.
+    Sarif,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum FailOnArg {
+    Error,
+    Warning,
+    Info,
+    Never,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ColorArg {
+    /// Colour on a terminal, unless NO_COLOR is set.
+    Auto,
+    Always,
+    Never,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct LintArgs {
+    #[command(flatten)]
+    pub common: CommonArgs,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = LintFormat::Human)]
+    pub format: LintFormat,
+    /// Lowest severity that makes the exit code 1 [default: warning, or `[lint] fail-on`].
+    #[arg(long, value_enum)]
+    pub fail_on: Option<FailOnArg>,
+    /// Configuration file [default: the nearest tidemark.toml from the current directory up].
+    #[arg(long, value_name = "PATH")]
+    pub config: Option<String>,
+    /// When to colour human output.
+    #[arg(long, value_enum, default_value_t = ColorArg::Auto)]
+    pub color: ColorArg,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum RulesFormat {
+    Text,
+    Json,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct RulesArgs {
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = RulesFormat::Text)]
+    pub format: RulesFormat,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct ExplainArgs {
+    /// A rule id, as `tidemark rules` lists them.
+    pub id: String,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -87,5 +162,8 @@ pub fn run() -> i32 {
     };
     match cli.command {
         Command::Extract(args) => extract::run(&args),
+        Command::Lint(args) => lint::run(&args),
+        Command::Rules(args) => lint::rules(&args),
+        Command::Explain(args) => lint::explain(&args),
     }
 }

@@ -80,3 +80,49 @@ pub fn write_extract_line<W: Write>(
     serde_json::to_writer(&mut *out, &v)?;
     out.write_all(b"\n")
 }
+
+pub const LINT_SCHEMA: &str = "tidemark-lint/1";
+
+/// The JSON value of one document's lint result (`tidemark-lint/1`): `source`, `kind`
+/// (`discharge_summary`, `progress_note`, `nursing_obs`, `clinic_letter`, `other`, or null
+/// for a skipped input), `diagnostics` (`rule`, `severity`, `category`, `message`, `query`?,
+/// `span` or null, `fix`?) and `warnings`. Documented in
+/// `docs/schema/tidemark-lint-1.schema.json`.
+pub fn lint_document(doc: &Doc, analysis: Option<&Analysis>) -> Value {
+    match analysis {
+        Some(a) => json!({
+            "source": doc.source,
+            "kind": a.kind,
+            "diagnostics": a.diagnostics,
+            "warnings": doc.warnings,
+        }),
+        None => json!({
+            "source": doc.source,
+            "kind": null,
+            "diagnostics": [],
+            "warnings": doc.warnings,
+        }),
+    }
+}
+
+/// Write the whole lint run as one pretty-printed object.
+pub fn write_lint_run<W: Write>(out: &mut W, docs: &[(Doc, Option<Analysis>)]) -> io::Result<()> {
+    let documents: Vec<Value> = docs
+        .iter()
+        .map(|(d, a)| lint_document(d, a.as_ref()))
+        .collect();
+    let run = json!({"schema": LINT_SCHEMA, "documents": documents});
+    serde_json::to_writer_pretty(&mut *out, &run)?;
+    out.write_all(b"\n")
+}
+
+/// Write one document's lint result as one line, with the `schema` key added (as the
+/// extract command's JSON Lines do).
+pub fn write_lint_line<W: Write>(out: &mut W, doc: &Doc, a: Option<&Analysis>) -> io::Result<()> {
+    let mut v = lint_document(doc, a);
+    v.as_object_mut()
+        .expect("object")
+        .insert("schema".into(), json!(LINT_SCHEMA));
+    serde_json::to_writer(&mut *out, &v)?;
+    out.write_all(b"\n")
+}

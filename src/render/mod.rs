@@ -1,6 +1,8 @@
 //! Renderers: they turn analyses into output and know nothing of parsing.
 
 pub mod json;
+pub mod lint_human;
+pub mod sarif;
 pub mod summary;
 
 /// The caution every human-facing output carries.

@@ -1,0 +1,307 @@
+//! Document kind: discharge summary, progress or ward-round note, nursing observations, clinic
+//! letter or other, decided from headers and wording.
+//!
+//! The opening lines (the header block) weigh most; section kinds found by extraction add to
+//! the score. Cue lists are common practice of UK and US note writing (no source).
+
+use serde::Serialize;
+
+use crate::model::{Extraction, SectionKind};
+
+/// The kind of a note.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, Serialize, Default)]
+#[serde(rename_all = "snake_case")]
+pub enum DocKind {
+    DischargeSummary,
+    ProgressNote,
+    NursingObs,
+    ClinicLetter,
+    #[default]
+    Other,
+}
+
+impl DocKind {
+    pub const ALL: [DocKind; 5] = [
+        Self::DischargeSummary,
+        Self::ProgressNote,
+        Self::NursingObs,
+        Self::ClinicLetter,
+        Self::Other,
+    ];
+
+    pub fn name(self) -> &'static str {
+        match self {
+            Self::DischargeSummary => "discharge_summary",
+            Self::ProgressNote => "progress_note",
+            Self::NursingObs => "nursing_obs",
+            Self::ClinicLetter => "clinic_letter",
+            Self::Other => "other",
+        }
+    }
+
+    pub fn label(self) -> &'static str {
+        match self {
+            Self::DischargeSummary => "discharge summary",
+            Self::ProgressNote => "progress or ward-round note",
+            Self::NursingObs => "nursing observations",
+            Self::ClinicLetter => "clinic letter",
+            Self::Other => "other note",
+        }
+    }
+}
+
+/// Every kind.
+pub const ANY: &[DocKind] = &DocKind::ALL;
+/// Every kind but nursing observations (rules about medical assessment and plans).
+pub const MEDICAL: &[DocKind] = &[
+    DocKind::DischargeSummary,
+    DocKind::ProgressNote,
+    DocKind::ClinicLetter,
+    DocKind::Other,
+];
+
+/// How many leading lines count as the header block.
+const HEADER_LINES: usize = 6;
+
+use DocKind::ProgressNote as Progress;
+use DocKind::{ClinicLetter as Letter, DischargeSummary as Discharge, NursingObs as Nursing};
+
+/// `(kind, phrase, weight)`: lower-case words or phrases, matched on word boundaries. The
+/// weight counts in the header block, twice on the title (first non-blank) line, and a third
+/// (rounded down, at least 1) anywhere else.
+const CUES: &[(DocKind, &str, u32)] = &[
+    (Discharge, "discharge summary", 9),
+    (Discharge, "discharge letter", 9),
+    (Discharge, "discharge note", 8),
+    (Discharge, "date of discharge", 6),
+    (Discharge, "discharge date", 6),
+    (Discharge, "discharge diagnosis", 5),
+    (Discharge, "discharge medications", 4),
+    (Discharge, "discharge instructions", 4),
+    (Discharge, "hospital course", 4),
+    (Discharge, "discharged home", 3),
+    (Discharge, "tto", 3),
+    (Letter, "dear dr", 8),
+    (Letter, "dear doctor", 8),
+    (Letter, "dear colleague", 8),
+    (Letter, "clinic letter", 9),
+    (Letter, "outpatient", 5),
+    (Letter, "clinic", 4),
+    (Letter, "i saw", 4),
+    (Letter, "i reviewed", 3),
+    (Letter, "yours sincerely", 6),
+    (Letter, "kind regards", 4),
+    (Letter, "follow-up visit", 4),
+    // The author's role qualifies a note type ("nursing progress note").
+    (Nursing, "nursing progress note", 14),
+    (Nursing, "nursing note", 12),
+    (Nursing, "nursing entry", 12),
+    (Nursing, "nursing", 5),
+    (Nursing, "nurse", 4),
+    (Nursing, "rn", 3),
+    (Nursing, "obs chart", 6),
+    (Nursing, "observation chart", 6),
+    (Nursing, "news2", 4),
+    (Nursing, "news", 3),
+    (Nursing, "night entry", 6),
+    (Nursing, "care plan", 3),
+    (Progress, "ward round", 8),
+    (Progress, "progress note", 9),
+    (Progress, "post-take", 8),
+    (Progress, "post take", 8),
+    (Progress, "wr", 4),
+    (Progress, "ptwr", 8),
+    (Progress, "clerking", 7),
+    (Progress, "medical review", 6),
+    (Progress, "ward review", 6),
+    (Progress, "night review", 6),
+    (Progress, "handover", 5),
+    (Progress, "consult", 5),
+    (Progress, "hospital day", 5),
+    (Progress, "admission note", 6),
+    (Progress, "physician note", 6),
+    (Progress, "history and physical", 7),
+    (Progress, "h&p", 6),
+    (Progress, "emergency department", 4),
+    (Progress, "icu", 3),
+    (Progress, "ccu", 3),
+    (Progress, "impression", 1),
+];
+
+/// Whether `phrase` occurs in `hay` (both lower case) on word boundaries.
+pub(crate) fn has_phrase(hay: &str, phrase: &str) -> bool {
+    let bytes = hay.as_bytes();
+    let mut from = 0;
+    while let Some(i) = hay[from..].find(phrase) {
+        let start = from + i;
+        let end = start + phrase.len();
+        let before_ok = start == 0 || !bytes[start - 1].is_ascii_alphanumeric();
+        let after_ok = end >= bytes.len() || !bytes[end].is_ascii_alphanumeric();
+        if before_ok && after_ok {
+            return true;
+        }
+        from = start + 1;
+        while from < hay.len() && !hay.is_char_boundary(from) {
+            from += 1;
+        }
+        if from >= hay.len() {
+            break;
+        }
+    }
+    false
+}
+
+/// Decide the kind of a note from its header block, its wording and its sections.
+pub fn detect(text: &str, ex: &Extraction) -> DocKind {
+    let lower = text.to_lowercase();
+    let header_end = lower
+        .match_indices('\n')
+        .nth(HEADER_LINES - 1)
+        .map(|(i, _)| i)
+        .unwrap_or(lower.len());
+    let header = &lower[..header_end];
+    let title = header.lines().find(|l| !l.trim().is_empty()).unwrap_or("");
+    let body = &lower[header_end..];
+    let mut score = [0u32; 5];
+    let slot = |k: DocKind| DocKind::ALL.iter().position(|x| *x == k).unwrap_or(4);
+    for &(kind, phrase, weight) in CUES {
+        if has_phrase(title, phrase) {
+            score[slot(kind)] += weight * 2;
+        } else if has_phrase(header, phrase) {
+            score[slot(kind)] += weight;
+        } else if has_phrase(body, phrase) {
+            score[slot(kind)] += (weight / 3).max(1);
+        }
+    }
+    for s in &ex.sections {
+        match s.kind {
+            SectionKind::DischargeMedications | SectionKind::DischargeInstructions => {
+                score[slot(DocKind::DischargeSummary)] += 4
+            }
+            SectionKind::Subjective | SectionKind::Objective => {
+                score[slot(DocKind::ProgressNote)] += 2
+            }
+            SectionKind::Assessment | SectionKind::Plan | SectionKind::Examination => {
+                score[slot(DocKind::ProgressNote)] += 1
+            }
+            _ => {}
+        }
+    }
+    // Highest score wins; ties go to the earlier kind in `ALL`, which orders the more
+    // specific document types first. A score below 3 is too weak to call.
+    let (best, &top) = score[..4]
+        .iter()
+        .enumerate()
+        .max_by(|a, b| a.1.cmp(b.1).then(b.0.cmp(&a.0)))
+        .unwrap_or((4, &0));
+    if top < 3 {
+        DocKind::Other
+    } else {
+        DocKind::ALL[best]
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn kind(text: &str) -> DocKind {
+        detect(text, &Extraction::default())
+    }
+
+    // All headers below are invented.
+    #[test]
+    fn discharge_summaries() {
+        assert_eq!(
+            kind("DISCHARGE SUMMARY\nWard 4\nDate of admission: 01/03/2026\n"),
+            DocKind::DischargeSummary
+        );
+        assert_eq!(
+            kind("Patient: AB\nDischarge date: 2026-03-09\nHospital course: diuresed\n"),
+            DocKind::DischargeSummary
+        );
+    }
+
+    #[test]
+    fn clinic_letters() {
+        assert_eq!(
+            kind("Heart Failure Clinic\n\nDear Dr Example,\nI saw Mrs X today.\n"),
+            DocKind::ClinicLetter
+        );
+        assert_eq!(
+            kind("Outpatient review\nSeen with her daughter.\nYours sincerely\n"),
+            DocKind::ClinicLetter
+        );
+    }
+
+    #[test]
+    fn nursing_obs() {
+        assert_eq!(
+            kind("Nursing night entry 02:00\nObs: BP 110/70 HR 88 SpO2 95%\n"),
+            DocKind::NursingObs
+        );
+        assert_eq!(
+            kind("NEWS2 3. RN to recheck obs at 06:00.\n"),
+            DocKind::NursingObs
+        );
+    }
+
+    #[test]
+    fn progress_notes() {
+        assert_eq!(
+            kind("Cardiology ward round 09:30\nS: breathless overnight\n"),
+            DocKind::ProgressNote
+        );
+        assert_eq!(
+            kind("PROGRESS NOTE - Hospital Day 3\nSubjective: better\n"),
+            DocKind::ProgressNote
+        );
+        assert_eq!(
+            kind("Post-take WR\nImp: decompensated HF\n"),
+            DocKind::ProgressNote
+        );
+        assert_eq!(kind("PTWR  Cons: Dr A\nImp: CCF\n"), DocKind::ProgressNote);
+        // The title line outweighs a passing mention of nursing staff below it.
+        assert_eq!(
+            kind("Medical WR Sat\nBed 2.\nMore confused per nursing staff.\n"),
+            DocKind::ProgressNote
+        );
+    }
+
+    #[test]
+    fn the_author_role_qualifies_the_note_type() {
+        assert_eq!(
+            kind("Nursing progress note - Ward 9\nPt comfortable overnight.\n"),
+            DocKind::NursingObs
+        );
+    }
+
+    #[test]
+    fn other_when_nothing_says() {
+        assert_eq!(kind("BP 120/80. HR 70.\n"), DocKind::Other);
+        assert_eq!(kind(""), DocKind::Other);
+        // "wrist" must not match the ward-round abbreviation "wr".
+        assert_eq!(kind("wrist pain, nursery rhyme\n"), DocKind::Other);
+    }
+
+    #[test]
+    fn sections_add_evidence() {
+        use crate::model::Section;
+        let mut ex = Extraction::default();
+        ex.sections.push(Section {
+            kind: SectionKind::DischargeMedications,
+            title: "Medications on leaving".into(),
+            header: Default::default(),
+            span: Default::default(),
+        });
+        assert_eq!(
+            detect("Medications on leaving:\n", &ex),
+            DocKind::DischargeSummary
+        );
+    }
+
+    #[test]
+    fn non_ascii_text_does_not_panic() {
+        assert_eq!(kind("Ödem ++ — “nursing” ✓ 😀\n"), DocKind::NursingObs);
+    }
+}

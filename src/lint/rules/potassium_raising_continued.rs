@@ -1,0 +1,167 @@
+//! `potassium-raising-continued`: see [`RULE`] and its documentation text.
+
+use super::patient_values;
+use crate::lint::kind::MEDICAL;
+use crate::lint::{at_line, num, quote, Category, Ctx, Diagnostic, Rule, Severity};
+use crate::model::{Assertion, DrugClass, MeasureConcept, MedChange};
+
+pub const RULE: Rule = Rule {
+    id: "potassium-raising-continued",
+    category: Category::Safety,
+    severity: Severity::Warning,
+    summary: "Potassium is high while a potassium-raising drug is continued without comment.",
+    doc: DOC,
+    kinds: MEDICAL,
+    check,
+};
+
+const DOC: &str = "\
+## What
+Fires when the most recent potassium in the note is above the threshold (default greater than
+5.5 mmol/L) and a potassium-raising drug (an MRA, ACE inhibitor, ARB, ARNI or a potassium
+supplement) is mentioned as current or continued with no change or comment: not stopped, held,
+reduced or switched anywhere in the note. One diagnostic per drug. The threshold is set in
+`tidemark.toml` (`[lint.thresholds] potassium-high`).
+
+## Why
+Hyperkalaemia is a common reason these drugs are reduced or paused, and a note that
+lists them as unchanged beside a high potassium reads as an oversight even when it is a
+deliberate decision. The rule asks for the decision to be written, not for any particular
+one; it never suggests starting or stopping a drug.
+
+## Fires
+```text
+K 5.9. Meds: spironolactone 25 mg od, ramipril 5 mg od. Plan: continue.
+```
+
+## Does not fire
+```text
+K 5.9. Spironolactone held, ramipril reduced to 2.5 mg. Recheck U&E tomorrow.
+```
+
+## Sources
+Threshold: the ESC heart failure guidelines' practical advice on MRAs, to halve the dose
+above 5.5 mmol/L and stop above 6.0 mmol/L (from memory; tune locally). That these drug
+classes raise potassium: common practice, no source.
+";
+
+fn raises_potassium(c: DrugClass) -> bool {
+    matches!(
+        c,
+        DrugClass::Mra
+            | DrugClass::AceInhibitor
+            | DrugClass::Arb
+            | DrugClass::Arni
+            | DrugClass::PotassiumSupplement
+    )
+}
+
+fn class_label(c: DrugClass) -> &'static str {
+    match c {
+        DrugClass::Mra => "an MRA",
+        DrugClass::AceInhibitor => "an ACE inhibitor",
+        DrugClass::Arb => "an ARB",
+        DrugClass::Arni => "an ARNI",
+        DrugClass::PotassiumSupplement => "a potassium supplement",
+        _ => "a potassium-raising drug",
+    }
+}
+
+fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
+    let Some(k) = patient_values(cx.ex, MeasureConcept::Potassium)
+        .last()
+        .copied()
+    else {
+        return;
+    };
+    let Some(q) = k.normalized else { return };
+    let limit = cx.cfg.thresholds.potassium_high;
+    if q.value <= limit || q.value > 10.0 {
+        // Above 10 mmol/L is an implausible value, reported by value-implausible instead.
+        return;
+    }
+    let mut seen: Vec<&str> = Vec::new();
+    for m in &cx.ex.medications {
+        if !raises_potassium(m.class) || m.assertion != Assertion::Present {
+            continue;
+        }
+        if !matches!(m.change, None | Some(MedChange::Continued)) {
+            continue;
+        }
+        let commented =
+            cx.ex.medications.iter().any(|o| {
+                o.drug == m.drug && !matches!(o.change, None | Some(MedChange::Continued))
+            });
+        if commented || seen.contains(&m.drug.as_str()) {
+            continue;
+        }
+        seen.push(&m.drug);
+        out.push(RULE.diag(
+            format!(
+                "Potassium is {} mmol/L (\"{}\", {}), above {} mmol/L, while {} ({}) is listed \
+                 with no change or comment. Document the decision about {} in the light of the \
+                 potassium.",
+                num(q.value),
+                quote(&k.text),
+                at_line(&k.span),
+                num(limit),
+                m.drug,
+                class_label(m.class),
+                m.drug,
+            ),
+            Some(m.span),
+        ));
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::lint::testkit::Note;
+
+    const NOTE: &str = "K 5.9. Meds: spironolactone 25 mg od, ramipril 5 mg od, bisoprolol.\n";
+
+    fn base(k: f64) -> Note {
+        Note::new(NOTE).meas(
+            MeasureConcept::Potassium,
+            k,
+            Some("mmol/L"),
+            &format!("K {}", num(k)),
+        )
+    }
+
+    #[test]
+    fn fires_per_raising_drug_continued() {
+        let n = base(5.9)
+            .med("spironolactone", DrugClass::Mra, None, "spironolactone")
+            .med(
+                "ramipril",
+                DrugClass::AceInhibitor,
+                Some(MedChange::Continued),
+                "ramipril",
+            )
+            .med("bisoprolol", DrugClass::BetaBlocker, None, "bisoprolol");
+        let d = n.check(&RULE);
+        insta::assert_snapshot!(n.rendered(&d));
+        assert_eq!(d.len(), 2, "{d:?}");
+        assert!(d[0].message.contains("an MRA"), "{}", d[0].message);
+    }
+
+    #[test]
+    fn silent_when_the_drug_is_changed_or_potassium_is_not_high() {
+        let n = base(5.9)
+            .med("spironolactone", DrugClass::Mra, None, "spironolactone")
+            .med(
+                "spironolactone",
+                DrugClass::Mra,
+                Some(MedChange::Held),
+                "spironolactone",
+            );
+        assert!(n.check(&RULE).is_empty());
+        // 5.5 is not greater than 5.5.
+        let n = Note::new(NOTE)
+            .meas(MeasureConcept::Potassium, 5.5, Some("mmol/L"), "K 5.9")
+            .med("spironolactone", DrugClass::Mra, None, "spironolactone");
+        assert!(n.check(&RULE).is_empty());
+    }
+}
