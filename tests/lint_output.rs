@@ -92,6 +92,9 @@ fn evidence(concept: &str, supports: &'static str, text: &str) -> Evidence {
         supports,
         span: span(NOTE, text),
         note: text.into(),
+        item: "finding",
+        text: text.into(),
+        episode: None,
     }
 }
 
@@ -166,6 +169,7 @@ fn model() -> (Extraction, Picture) {
         message: "stated euvolaemic against documented congestion".into(),
         stated: vec![evidence("volume_status", "dry", "euvolaemic")],
         documented: vec![jvp, oedema],
+        kind: "stated-vs-documented",
     });
     (ex, pic)
 }

@@ -81,6 +81,7 @@ fn the_extract_document_carries_the_picture_keys() {
     let analysis = crate::Analysis {
         extraction: ex,
         picture,
+        kind: crate::lint::DocKind::Other,
         diagnostics: Vec::new(),
     };
     let doc = crate::cli::inputs::Doc {

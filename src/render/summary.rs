@@ -248,6 +248,7 @@ mod tests {
                     Some(Analysis {
                         extraction: ex,
                         picture,
+                        kind: crate::lint::DocKind::Other,
                         diagnostics: Vec::new(),
                     }),
                 )

@@ -117,6 +117,9 @@ mod tests {
                 supports: "wet",
                 span,
                 note: "JVP +4 cm".into(),
+                item: "finding",
+                text: "JVP +4 cm".into(),
+                episode: None,
             });
         })
     }

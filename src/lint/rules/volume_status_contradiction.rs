@@ -133,6 +133,9 @@ mod tests {
             supports,
             span: n.span_of(text),
             note: text.into(),
+            item: "finding",
+            text: text.into(),
+            episode: None,
         }
     }
 
@@ -148,6 +151,7 @@ mod tests {
                 message: "stated euvolaemic against wet signs".into(),
                 stated: vec![st],
                 documented: vec![jvp, oed],
+                kind: "stated-vs-documented",
             })
         });
         let d = n.check(&RULE);
