@@ -399,7 +399,23 @@ pub fn statements(doc: &Doc, out: &mut Output) {
         .map(|t| (t.0, t.1))
         .collect();
     let push = |out: &mut Output, kind: StatementKind, value: &str, start: usize, end: usize| {
-        let ctx = doc.engine.context(start, end, Target::Statement, false);
+        let mut ctx = doc.engine.context(start, end, Target::Statement, false);
+        // "Admitted with acute on chronic HFpEF" names this admission's diagnosis: an
+        // admission or presentation cue dates findings, not the diagnosis itself.
+        if matches!(
+            kind,
+            StatementKind::HeartFailure | StatementKind::HfType | StatementKind::Acuity
+        ) && ctx.temporality == crate::model::Temporality::Historical
+            && ctx.cues.iter().any(|c| {
+                c.family == "historical" && {
+                    let t = c.text.to_ascii_lowercase();
+                    t.contains("admi") || t.contains("present") || t.contains("initially")
+                }
+            })
+        {
+            ctx.temporality = crate::model::Temporality::Current;
+            ctx.cues.retain(|c| c.family != "historical");
+        }
         out.statements.push(Statement {
             kind,
             value: value.to_string(),

@@ -223,12 +223,18 @@ pub(crate) fn statements(ex: &Extraction, kind: StatementKind) -> Vec<&Statement
     v
 }
 
-/// The first affirmed mention of heart failure (a named HF or a stated type), if any.
+/// The first mention of heart failure (a named HF or a stated type) that is affirmed or
+/// uncertain ("suspected heart failure"), if any. Uncertain diagnoses count: in inpatient
+/// coding they are coded as if established (ICD-10-CM Official Guidelines, Section II.H),
+/// and elsewhere the documentation still needs the type and acuity before it can be.
 pub(crate) fn hf_mention(ex: &Extraction) -> Option<&Statement> {
+    use crate::model::{Assertion, Experiencer};
     ex.statements
         .iter()
         .filter(|s| {
-            matches!(s.kind, StatementKind::HeartFailure | StatementKind::HfType) && affirmed(s)
+            matches!(s.kind, StatementKind::HeartFailure | StatementKind::HfType)
+                && matches!(s.assertion, Assertion::Present | Assertion::Possible)
+                && s.experiencer == Experiencer::Patient
         })
         .min_by_key(|s| s.span.start)
 }

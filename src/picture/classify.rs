@@ -216,7 +216,14 @@ pub fn build(ex: &Extraction, tl: &Timeline) -> Classifications {
         c.volume_status = Some(v.into());
         c.sources.volume_status = Some(stated(s, None));
     }
-    if let Some((s, v)) = latest(ex, tl, StatementKind::Acuity, acuity) {
+    // A chronic heart failure written in the history ("Background: chronic HFrEF") is still
+    // chronic today; an acute episode in the history is not today's acuity.
+    let acuity_found = latest(ex, tl, StatementKind::Acuity, acuity).or_else(|| {
+        latest_historical(ex, tl, StatementKind::Acuity, |v| {
+            acuity(v).filter(|a| *a == "chronic")
+        })
+    });
+    if let Some((s, v)) = acuity_found {
         let (v, note) = if v == "decompensated" {
             match chronic_documented(ex, s) {
                 Some(why) => (
@@ -319,7 +326,7 @@ mod tests {
     }
 
     #[test]
-    fn type_and_nyha_fall_back_to_history_acuity_does_not() {
+    fn type_nyha_and_chronic_fall_back_to_history_acute_does_not() {
         let mut n = Note::new("PMH: HFpEF, NYHA III at baseline, admission with acute HF 2024.");
         n.statement("HFpEF", K::HfType, "hfpef").temporality = Temporality::Historical;
         n.statement("NYHA III", K::Nyha, "III").temporality = Temporality::Historical;
@@ -329,6 +336,9 @@ mod tests {
         assert!(c.sources.hf_type.unwrap().note.unwrap().contains("history"));
         assert_eq!(c.nyha_class.as_deref(), Some("III"));
         assert_eq!(c.acuity, None);
+        // Chronic heart failure in the history is still chronic.
+        n.statement("HFpEF", K::Acuity, "chronic").temporality = Temporality::Historical;
+        assert_eq!(run(&n).acuity.as_deref(), Some("chronic"));
         // A current statement beats the history.
         n.state("NYHA II", K::Nyha, "II");
         assert_eq!(run(&n).nyha_class.as_deref(), Some("II"));

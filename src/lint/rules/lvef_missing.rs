@@ -1,7 +1,7 @@
 //! `lvef-missing`: see [`RULE`] and its documentation text.
 
 use super::patient_values;
-use crate::lint::kind::MEDICAL;
+use crate::lint::kind::ANY;
 use crate::lint::{statements, Category, Ctx, Diagnostic, Rule, Severity};
 use crate::model::{MeasureConcept, StatementKind};
 
@@ -11,7 +11,7 @@ pub const RULE: Rule = Rule {
     severity: Severity::Warning,
     summary: "A heart-failure assessment gives no ejection fraction.",
     doc: DOC,
-    kinds: MEDICAL,
+    kinds: ANY,
     check,
 };
 
@@ -21,8 +21,9 @@ Fires when a heart-failure discharge summary, medical assessment or clinic lette
 LVEF value. With neither an LVEF nor a stated type (HFrEF, HFpEF ...) it is a warning. When a
 type or a qualitative LV function (\"severely impaired LV function\") is stated but no number
 is, it fires as info: the type is documented, but the EF value and its date are what the type
-rests on. Any LVEF value, even a range or a bound (`EF <20%`), silences it. Nursing
-observation entries are not checked.
+rests on. Any LVEF value, even a range or a bound (`EF <20%`), silences it. It applies to
+every kind of note that names heart failure, nursing and telephone entries included: whoever
+reads the note next needs the EF, and its absence is worth a query.
 
 ## Why
 LV systolic function drives both treatment and coding: the type of heart failure (I50.2-
@@ -108,7 +109,7 @@ mod tests {
     }
 
     #[test]
-    fn silent_with_an_lvef_or_in_nursing_obs() {
+    fn silent_with_an_lvef_and_checked_in_nursing_entries() {
         let n = Note::new(DS)
             .stmt(StatementKind::HeartFailure, "", "heart failure")
             .meas(MeasureConcept::Lvef, 30.0, Some("%"), "LVEF 30%");
@@ -118,6 +119,6 @@ mod tests {
             "",
             "heart failure",
         );
-        assert!(n.check(&RULE).is_empty());
+        assert_eq!(n.check(&RULE).len(), 1);
     }
 }
