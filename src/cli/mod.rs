@@ -3,8 +3,11 @@
 //! Only this module does I/O. Each input becomes one document; a document that cannot be
 //! read or decoded is reported in the output and on stderr, and the run goes on.
 
+pub mod check;
 pub mod extract;
 pub mod inputs;
+pub mod settings;
+pub mod stream;
 
 use clap::{Parser, Subcommand, ValueEnum};
 
@@ -24,6 +27,32 @@ pub struct Cli {
 pub enum Command {
     /// Extract measurements, findings and the clinical picture from notes.
     Extract(ExtractArgs),
+    /// Editor mode: read one JSON request on stdin, print one JSON response.
+    Check(CheckArgs),
+    /// Run the language server over stdin/stdout.
+    Lsp(LspArgs),
+}
+
+#[derive(Debug, clap::Args)]
+pub struct CheckArgs {
+    /// Read `{"text": ..., "path": ..., "config": ...}` on stdin and answer in JSON.
+    #[arg(long, required = true)]
+    pub stdin_json: bool,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct LspArgs {
+    /// Talk the Language Server Protocol on stdin/stdout (the only transport).
+    #[arg(long)]
+    pub stdio: bool,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum InputFormat {
+    /// Files, directories or stdin as one document each.
+    Files,
+    /// JSON lines `{"id": ..., "text": ...}` on stdin, one document per line.
+    Jsonl,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -34,6 +63,8 @@ pub enum ExtractFormat {
     Jsonl,
     /// A compact human summary of each note's picture.
     Text,
+    /// A FHIR R4 Bundle (type collection) of Observations and Conditions.
+    Fhir,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -62,6 +93,9 @@ pub struct ExtractArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = ExtractFormat::Json)]
     pub format: ExtractFormat,
+    /// Input format; `jsonl` streams JSON lines from stdin (with `--format jsonl`).
+    #[arg(long, value_enum, default_value_t = InputFormat::Files)]
+    pub input: InputFormat,
 }
 
 impl CommonArgs {
@@ -87,5 +121,7 @@ pub fn run() -> i32 {
     };
     match cli.command {
         Command::Extract(args) => extract::run(&args),
+        Command::Check(_) => check::run(),
+        Command::Lsp(_) => crate::lsp::run_stdio(),
     }
 }

@@ -1,6 +1,8 @@
 //! Renderers: they turn analyses into output and know nothing of parsing.
 
+pub mod fhir;
 pub mod json;
+pub mod positions;
 pub mod summary;
 
 /// The caution every human-facing output carries.
