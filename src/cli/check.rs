@@ -151,8 +151,13 @@ pub fn check_text(
     let mut doc = Doc::from_bytes(source, text.as_bytes());
     doc.warnings.extend(extra_warnings);
     let analysis = doc.text.as_deref().map(|t| crate::analyze(t, config));
-    let mut document = render::json::extract_document(&doc, analysis.as_ref());
-    let mut diagnostics = json!(analysis.as_ref().map(|a| &a.diagnostics));
+    response(&doc, analysis.as_ref(), path)
+}
+
+/// The response for a document and its analysis (`None` when the document was skipped).
+pub fn response(doc: &Doc, analysis: Option<&crate::Analysis>, path: Option<String>) -> Value {
+    let mut document = render::json::extract_document(doc, analysis);
+    let mut diagnostics = json!(analysis.map(|a| &a.diagnostics));
     if diagnostics.is_null() {
         diagnostics = json!([]);
     }
