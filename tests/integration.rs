@@ -52,8 +52,8 @@ fn handbuilt() -> (Doc, Analysis) {
         let i = NOTE.find(s).unwrap_or_else(|| panic!("{s} in note"));
         idx.span(i, i + s.len())
     };
-    let m = |concept: MeasureConcept, text: &str, value: f64, unit: Option<&'static str>| {
-        Measurement {
+    let m =
+        |concept: MeasureConcept, text: &str, value: f64, unit: Option<&'static str>| Measurement {
             concept,
             value,
             unit,
@@ -72,8 +72,7 @@ fn handbuilt() -> (Doc, Analysis) {
             span: at(text),
             section: None,
             episode: None,
-        }
-    };
+        };
     let f = |concept: FindingConcept, text: &str, assertion: Assertion| Finding {
         concept,
         assertion,
@@ -118,7 +117,12 @@ fn handbuilt() -> (Doc, Analysis) {
             bp_dia,
             m(MeasureConcept::HeartRate, "HR 72", 72.0, Some("/min")),
             m(MeasureConcept::Spo2, "SpO2 95%", 95.0, Some("%")),
-            m(MeasureConcept::Creatinine, "Cr 130 µmol/L", 130.0, Some("umol/L")),
+            m(
+                MeasureConcept::Creatinine,
+                "Cr 130 µmol/L",
+                130.0,
+                Some("umol/L"),
+            ),
             m(MeasureConcept::Sodium, "Na 134", 134.0, Some("mmol/L")),
             weight,
         ],
@@ -173,8 +177,7 @@ fn handbuilt_fixtures_are_written_for_outside_validation() {
     )
     .unwrap();
 
-    let response =
-        tidemark::cli::check::response(&doc, Some(&analysis), Some(doc.source.clone()));
+    let response = tidemark::cli::check::response(&doc, Some(&analysis), Some(doc.source.clone()));
     let d = &response["diagnostics"][0];
     // "Wt 82.4" is on line 3 at the line start: columns agree in every unit there.
     assert_eq!(d["span"]["line"], 3);
@@ -213,7 +216,8 @@ fn check_answers_a_request() {
 
 #[test]
 fn stream_keeps_order_and_reports_bad_lines() {
-    let input = "{\"id\": \"a\", \"text\": \"Wt 82.4\"}\nnot json\n{\"id\": 3, \"text\": \"µ°😀\"}\n";
+    let input =
+        "{\"id\": \"a\", \"text\": \"Wt 82.4\"}\nnot json\n{\"id\": 3, \"text\": \"µ°😀\"}\n";
     let (code, out) = run_with_stdin(&["extract", "--input", "jsonl", "--format", "jsonl"], input);
     assert_eq!(code, 1, "an error line makes the exit code 1");
     let lines: Vec<Value> = out
@@ -254,5 +258,8 @@ fn fhir_output_reports_a_skipped_document() {
     let v: Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(v["resourceType"], "Bundle");
     assert_eq!(v["type"], "collection");
-    assert_eq!(v["entry"][0]["resource"]["resourceType"], "OperationOutcome");
+    assert_eq!(
+        v["entry"][0]["resource"]["resourceType"],
+        "OperationOutcome"
+    );
 }
