@@ -187,8 +187,15 @@ pub fn document_entries(
 }
 
 /// Whether a measurement is a value of the patient's own (not a target, not someone else's).
+/// A value that is not a finite number (never written by a note) is left out too, since a
+/// FHIR decimal cannot hold it.
 fn exports(m: &Measurement) -> bool {
-    m.assertion == Assertion::Present && m.experiencer == Experiencer::Patient
+    m.assertion == Assertion::Present
+        && m.experiencer == Experiencer::Patient
+        && m.value.is_finite()
+        && m.normalized.map_or(true, |q| q.value.is_finite())
+        && m.range
+            .map_or(true, |(lo, hi)| lo.is_finite() && hi.is_finite())
 }
 
 /// Systolic/diastolic pairs written together: a diastolic value starting within a few bytes
@@ -648,6 +655,9 @@ mod tests {
         let mut ex = ex;
         ex.measurements[1].date = Some("2026-03-05".into());
         assert_eq!(resources(&ex).len(), 4);
+        // A non-finite value cannot be a FHIR decimal and is left out.
+        ex.measurements[2].value = f64::NAN;
+        assert_eq!(resources(&ex).len(), 3);
     }
 
     #[test]

@@ -103,7 +103,18 @@ async def test_open_change_save_publish_versioned_diagnostics(client):
     symbols = await client.text_document_document_symbol_async(
         types.DocumentSymbolParams(text_document=types.TextDocumentIdentifier(uri=URI))
     )
-    assert isinstance(symbols, list)
+    assert isinstance(symbols, (list, tuple))
+    actions = await client.text_document_code_action_async(
+        types.CodeActionParams(
+            text_document=types.TextDocumentIdentifier(uri=URI),
+            range=types.Range(
+                start=types.Position(line=WT_LINE, character=WT_COL),
+                end=types.Position(line=WT_LINE, character=VALUE_END),
+            ),
+            context=types.CodeActionContext(diagnostics=[]),
+        )
+    )
+    assert actions is None or isinstance(actions, (list, tuple))
     # A hover anywhere answers (null where nothing was extracted) without an error.
     await client.text_document_hover_async(
         types.HoverParams(
@@ -130,6 +141,19 @@ async def test_unit_missing_at_utf16_position_then_fixed(client):
     assert d.severity in (types.DiagnosticSeverity.Warning, types.DiagnosticSeverity.Error)
     assert d.source == "tidemark"
     assert d.code_description is not None or "tidemark explain unit-missing" in d.message
+    # Where lint offers the unit as a safe fix, it comes back as a quick fix editing the
+    # same line.
+    actions = await client.text_document_code_action_async(
+        types.CodeActionParams(
+            text_document=types.TextDocumentIdentifier(uri=URI),
+            range=d.range,
+            context=types.CodeActionContext(diagnostics=[d]),
+        )
+    )
+    for a in actions or []:
+        assert a.kind == types.CodeActionKind.QuickFix
+        (edit,) = a.edit.changes[URI]
+        assert edit.range.start.line == WT_LINE
     second = await change_and_wait(client, 2, (WT_LINE, VALUE_END), (WT_LINE, VALUE_END), " kg")
     assert not [
         x for x in second.diagnostics if x.code == "unit-missing" and x.range.start.line == WT_LINE
