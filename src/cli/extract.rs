@@ -63,7 +63,7 @@ fn run_stream(args: &ExtractArgs, config: &Config) -> i32 {
     let result = stream::run(stdin.lock(), stdout.lock(), |_, doc| {
         extract_line(doc, config)
     });
-    stream_exit_code(result)
+    stream::exit_code(result)
 }
 
 /// The extract result of one streamed document.
@@ -74,17 +74,4 @@ pub fn extract_line(doc: &inputs::Doc, config: &Config) -> Value {
         obj.insert("schema".into(), json!(render::json::EXTRACT_SCHEMA));
     }
     v
-}
-
-/// Exit code of a streaming run: 0 all lines answered, 1 some were error lines, 2 I/O error.
-pub fn stream_exit_code(result: std::io::Result<stream::StreamStats>) -> i32 {
-    match result {
-        Ok(stats) if stats.errors > 0 => 1,
-        Ok(_) => 0,
-        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => 0,
-        Err(e) => {
-            eprintln!("tidemark: streaming stopped: {e}");
-            2
-        }
-    }
 }

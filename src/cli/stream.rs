@@ -9,7 +9,13 @@
 //! is skipped without being held in memory and reported as `too-large`).
 //!
 //! [`run`] takes the per-document function, so every command with a JSON result can stream:
-//! `extract` passes one that analyses the text and renders the extract document.
+//! `extract` passes one that analyses the text and renders the extract document. Another
+//! command is wired the same way:
+//!
+//! ```text
+//! let result = stream::run(stdin.lock(), stdout.lock(), |_id, doc| lint_document(doc));
+//! return stream::exit_code(result);
+//! ```
 
 use std::io::{self, BufRead, Write};
 use std::panic::{catch_unwind, AssertUnwindSafe};
@@ -43,6 +49,20 @@ where
     F: FnMut(&Value, &Doc) -> Value,
 {
     run_with_limit(&mut input, &mut output, &mut per_doc, MAX_LINE_BYTES)
+}
+
+/// Exit code of a streaming run: 0 when every line got a result, 1 when some got an error
+/// line, 2 on an input or output error (a closed output pipe is not an error).
+pub fn exit_code(result: io::Result<StreamStats>) -> i32 {
+    match result {
+        Ok(stats) if stats.errors > 0 => 1,
+        Ok(_) => 0,
+        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => 0,
+        Err(e) => {
+            eprintln!("tidemark: streaming stopped: {e}");
+            2
+        }
+    }
 }
 
 fn run_with_limit<R, W, F>(
@@ -347,6 +367,25 @@ mod tests {
         let text = String::from_utf8(rec.data.clone()).unwrap();
         let first_len = text.find('\n').unwrap() + 1;
         assert_eq!(rec.flushes, vec![first_len, text.len()]);
+    }
+
+    #[test]
+    fn exit_codes_tell_error_lines_from_io_errors() {
+        let ok = StreamStats {
+            lines: 3,
+            errors: 0,
+        };
+        assert_eq!(exit_code(Ok(ok)), 0);
+        assert_eq!(
+            exit_code(Ok(StreamStats {
+                lines: 3,
+                errors: 1
+            })),
+            1
+        );
+        let pipe = io::Error::new(io::ErrorKind::BrokenPipe, "closed");
+        assert_eq!(exit_code(Err(pipe)), 0);
+        assert_eq!(exit_code(Err(io::Error::other("disk"))), 2);
     }
 
     #[test]
