@@ -9,7 +9,8 @@
 //! requires.
 //!
 //! Configuration: the client's `initializationOptions` (the same keys as `check`'s `config`,
-//! plus `rulesDocUrl`). Layering is defaults, then the project file, then the client; the
+//! plus `rulesDocUrl`), and later `workspace/didChangeConfiguration` settings. Layering is
+//! defaults, then the project file, then the client; the
 //! project file (`tidemark.toml`) is read at the marked place once the lint configuration
 //! that defines it exists.
 //!
@@ -25,18 +26,18 @@ use std::str::FromStr;
 
 use lsp_server::{Connection, ErrorCode, Message, Notification, Request, Response};
 use lsp_types::notification::{
-    DidChangeTextDocument, DidCloseTextDocument, DidOpenTextDocument, DidSaveTextDocument,
-    LogMessage, Notification as _, PublishDiagnostics,
+    DidChangeConfiguration, DidChangeTextDocument, DidCloseTextDocument, DidOpenTextDocument,
+    DidSaveTextDocument, LogMessage, Notification as _, PublishDiagnostics,
 };
 use lsp_types::request::{CodeActionRequest, DocumentSymbolRequest, HoverRequest, Request as _};
 use lsp_types::{
     CodeActionKind, CodeActionOptions, CodeActionOrCommand, CodeActionParams,
-    CodeActionProviderCapability, DidChangeTextDocumentParams, DidCloseTextDocumentParams,
-    DidOpenTextDocumentParams, DidSaveTextDocumentParams, DocumentSymbolParams,
-    DocumentSymbolResponse, HoverParams, HoverProviderCapability, InitializeParams,
-    LogMessageParams, MessageType, OneOf, PositionEncodingKind, PublishDiagnosticsParams,
-    SaveOptions, ServerCapabilities, TextDocumentSyncCapability, TextDocumentSyncKind,
-    TextDocumentSyncOptions, TextDocumentSyncSaveOptions, Uri,
+    CodeActionProviderCapability, DidChangeConfigurationParams, DidChangeTextDocumentParams,
+    DidCloseTextDocumentParams, DidOpenTextDocumentParams, DidSaveTextDocumentParams,
+    DocumentSymbolParams, DocumentSymbolResponse, HoverParams, HoverProviderCapability,
+    InitializeParams, LogMessageParams, MessageType, OneOf, PositionEncodingKind,
+    PublishDiagnosticsParams, SaveOptions, ServerCapabilities, TextDocumentSyncCapability,
+    TextDocumentSyncKind, TextDocumentSyncOptions, TextDocumentSyncSaveOptions, Uri,
 };
 use serde_json::Value;
 
@@ -147,6 +148,8 @@ fn log(connection: &Connection, typ: MessageType, message: String) {
 #[derive(Debug, Default)]
 pub struct Server {
     config: Config,
+    /// The configuration from `initialize`, on which later settings are layered.
+    base_config: Config,
     docs: RuleDocs,
     documents: HashMap<String, Document>,
     pending_logs: Vec<String>,
@@ -184,6 +187,7 @@ impl Server {
                 .pending_logs
                 .push(format!("initializationOptions ignored: {e}")),
         }
+        server.base_config = server.config.clone();
         server.docs.base = rules_doc.or_else(|| {
             let path = root?.join("docs").join("rules.md");
             path.is_file().then(|| file_uri(&path))
@@ -292,8 +296,48 @@ impl Server {
                 };
                 vec![Notification::new(PublishDiagnostics::METHOD.into(), params)]
             }
+            DidChangeConfiguration::METHOD => {
+                let Ok(p) =
+                    n.extract::<DidChangeConfigurationParams>(DidChangeConfiguration::METHOD)
+                else {
+                    return Vec::new();
+                };
+                self.change_settings(&p.settings)
+            }
             _ => Vec::new(),
         }
+    }
+
+    /// New settings from `workspace/didChangeConfiguration` (`{"tidemark": {...}}` or the
+    /// object itself), layered on the `initialize` configuration; every open document is
+    /// analysed again and its diagnostics published.
+    fn change_settings(&mut self, settings: &Value) -> Vec<Notification> {
+        let ours = settings.get("tidemark").unwrap_or(settings);
+        let mut config = self.base_config.clone();
+        match settings::apply_json(&mut config, ours) {
+            Ok(applied) => {
+                for key in applied.unknown {
+                    eprintln!("tidemark lsp: setting {key:?} is not known and was ignored");
+                }
+            }
+            Err(e) => {
+                eprintln!("tidemark lsp: settings ignored: {e}");
+                return Vec::new();
+            }
+        }
+        self.config = config;
+        let mut uris: Vec<String> = self.documents.keys().cloned().collect();
+        uris.sort();
+        let mut out = Vec::new();
+        for key in uris {
+            if let Some(doc) = self.documents.get_mut(&key) {
+                doc.reanalyze(&self.config);
+            }
+            if let Some(uri) = uri(&key) {
+                out.extend(self.publish(&uri));
+            }
+        }
+        out
     }
 
     fn publish(&self, uri: &Uri) -> Vec<Notification> {
@@ -402,6 +446,35 @@ mod tests {
         );
         assert_eq!(s.pending_logs.len(), 1);
         assert!(s.pending_logs[0].contains("colour"));
+    }
+
+    #[test]
+    fn changed_settings_reconfigure_and_republish_open_documents() {
+        let mut s = Server::from_init(&InitializeParams::default());
+        let open = |uri: &str| {
+            Notification::new(
+                DidOpenTextDocument::METHOD.into(),
+                json!({"textDocument": {"uri": uri, "languageId": "plaintext",
+                                        "version": 1, "text": "Wt 82.4"}}),
+            )
+        };
+        assert_eq!(s.notification(open("file:///a.txt")).len(), 1);
+        assert_eq!(s.notification(open("file:///b.txt")).len(), 1);
+        let change = Notification::new(
+            DidChangeConfiguration::METHOD.into(),
+            json!({"settings": {"tidemark": {"unit_system": "us"}}}),
+        );
+        let out = s.notification(change);
+        assert_eq!(out.len(), 2);
+        assert_eq!(out[0].params["uri"], "file:///a.txt");
+        assert_eq!(s.config.extract.unit_system, crate::config::UnitSystem::Us);
+        // A bad value leaves the configuration as it was and publishes nothing.
+        let bad = Notification::new(
+            DidChangeConfiguration::METHOD.into(),
+            json!({"settings": {"unit_system": 5}}),
+        );
+        assert!(s.notification(bad).is_empty());
+        assert_eq!(s.config.extract.unit_system, crate::config::UnitSystem::Us);
     }
 
     /// A whole session over an in-memory connection: initialize, open, change, hover,
