@@ -10,9 +10,8 @@
 //!
 //! Configuration: the client's `initializationOptions` (the same keys as `check`'s `config`,
 //! plus `rulesDocUrl`), and later `workspace/didChangeConfiguration` settings. Layering is
-//! defaults, then the project file, then the client; the
-//! project file (`tidemark.toml`) is read at the marked place once the lint configuration
-//! that defines it exists.
+//! defaults, then the project file, then the client; the project file (`tidemark.toml`) is
+//! read at the marked place once the lint configuration that defines it exists.
 //!
 //! Architecture invariant: nothing here writes to stdout except the protocol; logs go to
 //! stderr. The server never sends a note anywhere but back to its own client.
