@@ -9,7 +9,9 @@ import subprocess
 import jsonschema
 import pytest
 
-from conftest import SCHEMA, fixture, utf16_units
+from conftest import ROOT, SCHEMA, fixture, utf16_units
+
+REQUEST_SCHEMA = ROOT / "docs" / "schema" / "tidemark-check-request-1.schema.json"
 
 NOTE = (
     "Feels better 😀 · T 36.9 °C\n"
@@ -117,3 +119,23 @@ def test_empty_text_is_a_document_with_a_warning(binary, validator):
     assert rc == 0
     validator.validate(response)
     assert response["document"]["warnings"][0]["code"] == "empty"
+
+
+def test_request_schema_agrees_with_the_binary(binary, validator):
+    schema = json.loads(REQUEST_SCHEMA.read_text(encoding="utf-8"))
+    jsonschema.Draft202012Validator.check_schema(schema)
+    requests = jsonschema.Draft202012Validator(schema)
+    good = [
+        {"text": NOTE},
+        {"text": NOTE, "path": None, "config": {"date_order": "mdy", "unit_system": "us"}},
+    ]
+    bad = [{"path": "x"}, {"text": 3}, {"text": "x", "config": {"unit_system": "imperial"}}]
+    for req in good:
+        requests.validate(req)
+        code, response = check(binary, json.dumps(req).encode())
+        assert code == 0 and response["ok"] is True
+    for req in bad:
+        assert not requests.is_valid(req)
+        code, response = check(binary, json.dumps(req).encode())
+        assert code == 2 and response["ok"] is False
+        validator.validate(response)
