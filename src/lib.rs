@@ -16,6 +16,7 @@ pub mod extract;
 pub mod grammar;
 pub mod input;
 pub mod lint;
+pub mod lsp;
 pub mod model;
 pub mod picture;
 pub mod render;

@@ -175,6 +175,29 @@ impl<'a> LineIndex<'a> {
         range.end
     }
 
+    /// 0-based (line, UTF-16 code-unit column) of a byte offset: an LSP `Position`.
+    pub fn utf16_position(&self, offset: usize) -> (u32, u32) {
+        let offset = self.floor(offset);
+        (self.line_of(offset) as u32, self.utf16_column(offset))
+    }
+
+    /// Byte offset of a 0-based (line, UTF-16 column) position. A line past the end gives the
+    /// end of the text; a column past the end of its line gives the end of the line.
+    pub fn offset_of_utf16_position(&self, line: u32, utf16_col: u32) -> usize {
+        if line as usize >= self.line_count() {
+            return self.text.len();
+        }
+        self.offset_of_utf16(line, utf16_col)
+    }
+
+    /// The UTF-16 columns of a span's two ends, 1-based like [`Span::column`].
+    pub fn utf16_columns(&self, span: &Span) -> Utf16Columns {
+        Utf16Columns {
+            column_utf16: self.utf16_column(span.start) + 1,
+            end_column_utf16: self.utf16_column(span.end) + 1,
+        }
+    }
+
     /// A full [`Span`] for the byte range `start..end`.
     pub fn span(&self, start: usize, end: usize) -> Span {
         let (line, column) = self.position(start);
@@ -188,6 +211,16 @@ impl<'a> LineIndex<'a> {
             end_column,
         }
     }
+}
+
+/// A span's columns counted in UTF-16 code units (1-based, on the span's own lines).
+///
+/// Lines are the same in every unit; only columns differ. An LSP `Position` is
+/// `(line - 1, column_utf16 - 1)`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+pub struct Utf16Columns {
+    pub column_utf16: u32,
+    pub end_column_utf16: u32,
 }
 
 fn memchr_iter(needle: u8, haystack: &[u8]) -> impl Iterator<Item = usize> + '_ {
@@ -234,6 +267,35 @@ mod tests {
         let j = text.find('J').unwrap();
         assert_eq!(idx.utf16_column(j), 5);
         assert_eq!(idx.offset_of_utf16(0, 5), j);
+    }
+
+    #[test]
+    fn utf16_positions_on_mixed_text() {
+        // "µ" and "°" are one UTF-16 unit each (U+00B5, U+00B0, both in the BMP); "🫀"
+        // (U+1FAC0) is outside the BMP and takes a surrogate pair (Unicode Standard, ch. 3.9).
+        let text = "Cr 130 µmol/L\nT 37.2 °C 🫀 Wt 82.4\n";
+        let idx = LineIndex::new(text);
+        let wt = text.find("Wt").unwrap();
+        // Line 1: "T 37.2 °C " is 10 units, the emoji 2, then a space: "Wt" starts at 13.
+        assert_eq!(idx.utf16_position(wt), (1, 13));
+        // In scalar values the same place is column 13 (1-based 13 = 12 chars before it).
+        assert_eq!(idx.position(wt), (2, 13));
+        assert_eq!(idx.offset_of_utf16_position(1, 13), wt);
+        let s = idx.span(wt, wt + "Wt 82.4".len());
+        let u = idx.utf16_columns(&s);
+        assert_eq!((u.column_utf16, u.end_column_utf16), (14, 21));
+        // Past the end of the text and past the end of a line both clamp.
+        assert_eq!(idx.offset_of_utf16_position(9, 0), text.len());
+        assert_eq!(idx.offset_of_utf16_position(0, 99), "Cr 130 µmol/L".len());
+    }
+
+    #[test]
+    fn utf16_column_inside_a_surrogate_pair_snaps_to_the_character() {
+        let text = "a😀b";
+        let idx = LineIndex::new(text);
+        // Column 2 falls between the two halves of the pair; the offset after it is taken.
+        assert_eq!(idx.offset_of_utf16(0, 2), text.find('b').unwrap());
+        assert_eq!(idx.utf16_position(2), (0, 1));
     }
 
     #[test]

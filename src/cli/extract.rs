@@ -2,12 +2,18 @@
 
 use std::io::Write;
 
-use super::{inputs, ExtractArgs, ExtractFormat};
+use serde_json::{json, Value};
+
+use super::{inputs, stream, ExtractArgs, ExtractFormat, InputFormat};
+use crate::config::Config;
 use crate::render;
 
 /// `tidemark extract`.
 pub fn run(args: &ExtractArgs) -> i32 {
     let config = args.common.config();
+    if args.input == InputFormat::Jsonl {
+        return run_stream(args, &config);
+    }
     let docs = inputs::load_all(&args.common.paths);
     let stdout = std::io::stdout();
     let mut out = stdout.lock();
@@ -27,6 +33,7 @@ pub fn run(args: &ExtractArgs) -> i32 {
             .iter()
             .try_for_each(|(d, a)| render::json::write_extract_line(&mut out, d, a.as_ref())),
         ExtractFormat::Text => render::summary::write(&mut out, &analysed),
+        ExtractFormat::Fhir => render::fhir::write_bundle(&mut out, &analysed),
     };
     if let Err(e) = result.and_then(|_| out.flush()) {
         if e.kind() != std::io::ErrorKind::BrokenPipe {
@@ -39,4 +46,32 @@ pub fn run(args: &ExtractArgs) -> i32 {
     } else {
         0
     }
+}
+
+/// `tidemark extract --input jsonl --format jsonl`: one result line per input line.
+fn run_stream(args: &ExtractArgs, config: &Config) -> i32 {
+    if args.format != ExtractFormat::Jsonl {
+        eprintln!("tidemark: --input jsonl needs --format jsonl");
+        return 2;
+    }
+    if args.common.paths.iter().any(|p| p != "-") {
+        eprintln!("tidemark: --input jsonl reads stdin only; no paths are taken");
+        return 2;
+    }
+    let stdin = std::io::stdin();
+    let stdout = std::io::stdout();
+    let result = stream::run(stdin.lock(), stdout.lock(), |_, doc| {
+        extract_line(doc, config)
+    });
+    stream::exit_code(result)
+}
+
+/// The extract result of one streamed document.
+pub fn extract_line(doc: &inputs::Doc, config: &Config) -> Value {
+    let analysis = doc.text.as_deref().map(|t| crate::analyze(t, config));
+    let mut v = render::json::extract_document(doc, analysis.as_ref());
+    if let Some(obj) = v.as_object_mut() {
+        obj.insert("schema".into(), json!(render::json::EXTRACT_SCHEMA));
+    }
+    v
 }

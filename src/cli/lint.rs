@@ -96,6 +96,32 @@ impl EmptyOs for Option<std::ffi::OsString> {
 }
 
 /// `tidemark lint`.
+/// `tidemark lint --input jsonl --format jsonl`: one result line per input line, in order.
+fn run_stream(args: &LintArgs, config: &crate::Config) -> i32 {
+    if args.format != LintFormat::Jsonl {
+        eprintln!("tidemark: --input jsonl needs --format jsonl");
+        return 2;
+    }
+    if args.common.paths.iter().any(|p| p != "-") {
+        eprintln!("tidemark: --input jsonl reads stdin only; no paths are taken");
+        return 2;
+    }
+    let stdin = std::io::stdin();
+    let stdout = std::io::stdout();
+    let result = super::stream::run(stdin.lock(), stdout.lock(), |_, doc| {
+        let analysis = doc.text.as_deref().map(|t| crate::analyze(t, config));
+        let mut v = render::json::lint_document(doc, analysis.as_ref());
+        if let Some(obj) = v.as_object_mut() {
+            obj.insert(
+                "schema".into(),
+                serde_json::json!(render::json::LINT_SCHEMA),
+            );
+        }
+        v
+    });
+    super::stream::exit_code(result)
+}
+
 pub fn run(args: &LintArgs) -> i32 {
     let config = match load_config(args) {
         Ok(c) => c,
@@ -105,6 +131,9 @@ pub fn run(args: &LintArgs) -> i32 {
         }
     };
     let threshold = fail_on(args, &config);
+    if args.input == super::InputFormat::Jsonl {
+        return run_stream(args, &config);
+    }
     let docs = inputs::load_all(&args.common.paths);
     let mut analysed = Vec::with_capacity(docs.len());
     let mut skipped = false;

@@ -3,9 +3,12 @@
 //! Only this module does I/O. Each input becomes one document; a document that cannot be
 //! read or decoded is reported in the output and on stderr, and the run goes on.
 
+pub mod check;
 pub mod extract;
 pub mod inputs;
 pub mod lint;
+pub mod settings;
+pub mod stream;
 
 use clap::{Parser, Subcommand, ValueEnum};
 
@@ -34,6 +37,10 @@ pub enum Command {
     Rules(RulesArgs),
     /// Print the full documentation of one lint rule.
     Explain(ExplainArgs),
+    /// Editor mode: read one JSON request on stdin, print one JSON response.
+    Check(CheckArgs),
+    /// Run the language server over stdin/stdout.
+    Lsp(LspArgs),
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -80,6 +87,9 @@ pub struct LintArgs {
     /// When to colour human output.
     #[arg(long, value_enum, default_value_t = ColorArg::Auto)]
     pub color: ColorArg,
+    /// Input format; `jsonl` streams JSON lines from stdin (with `--format jsonl`).
+    #[arg(long, value_enum, default_value_t = InputFormat::Files)]
+    pub input: InputFormat,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -101,6 +111,28 @@ pub struct ExplainArgs {
     pub id: String,
 }
 
+#[derive(Debug, clap::Args)]
+pub struct CheckArgs {
+    /// Read `{"text": ..., "path": ..., "config": ...}` on stdin and answer in JSON.
+    #[arg(long, required = true)]
+    pub stdin_json: bool,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct LspArgs {
+    /// Talk the Language Server Protocol on stdin/stdout (the only transport).
+    #[arg(long)]
+    pub stdio: bool,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum InputFormat {
+    /// Files, directories or stdin as one document each.
+    Files,
+    /// JSON lines `{"id": ..., "text": ...}` on stdin, one document per line.
+    Jsonl,
+}
+
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum ExtractFormat {
     /// One JSON object for the whole run.
@@ -109,6 +141,8 @@ pub enum ExtractFormat {
     Jsonl,
     /// A compact human summary of each note's picture.
     Text,
+    /// A FHIR R4 Bundle (type collection) of Observations and Conditions.
+    Fhir,
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -137,6 +171,9 @@ pub struct ExtractArgs {
     /// Output format.
     #[arg(long, value_enum, default_value_t = ExtractFormat::Json)]
     pub format: ExtractFormat,
+    /// Input format; `jsonl` streams JSON lines from stdin (with `--format jsonl`).
+    #[arg(long, value_enum, default_value_t = InputFormat::Files)]
+    pub input: InputFormat,
 }
 
 impl CommonArgs {
@@ -165,5 +202,7 @@ pub fn run() -> i32 {
         Command::Lint(args) => lint::run(&args),
         Command::Rules(args) => lint::rules(&args),
         Command::Explain(args) => lint::explain(&args),
+        Command::Check(_) => check::run(),
+        Command::Lsp(_) => crate::lsp::run_stdio(),
     }
 }

@@ -1,7 +1,9 @@
 //! Renderers: they turn analyses into output and know nothing of parsing.
 
+pub mod fhir;
 pub mod json;
 pub mod lint_human;
+pub mod positions;
 pub mod sarif;
 pub mod summary;
 
