@@ -31,8 +31,19 @@ pub struct ExtractOptions {
     pub unit_system: UnitSystem,
 }
 
+/// Options of `tidemark handover` (the `[handover]` table of `tidemark.toml`).
+#[derive(Debug, Clone, Default, PartialEq, Eq, serde::Deserialize)]
+#[serde(default, deny_unknown_fields)]
+pub struct HandoverOptions {
+    /// A regular expression that finds the patient identifier in a note (`patient_id`). Its
+    /// first capture group, or else the whole match, is the key notes are grouped by; it is
+    /// tried before the built-in hospital-number and bed patterns.
+    pub patient_id: Option<String>,
+}
+
 /// The whole run configuration.
 #[derive(Debug, Clone, Default)]
 pub struct Config {
     pub extract: ExtractOptions,
+    pub handover: HandoverOptions,
 }

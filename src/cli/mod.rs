@@ -4,6 +4,7 @@
 //! read or decoded is reported in the output and on stderr, and the run goes on.
 
 pub mod extract;
+pub mod handover;
 pub mod inputs;
 
 use clap::{Parser, Subcommand, ValueEnum};
@@ -24,6 +25,8 @@ pub struct Cli {
 pub enum Command {
     /// Extract measurements, findings and the clinical picture from notes.
     Extract(ExtractArgs),
+    /// Pre-fill a handover sheet per patient from a day's notes.
+    Handover(HandoverArgs),
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -64,6 +67,31 @@ pub struct ExtractArgs {
     pub format: ExtractFormat,
 }
 
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum HandoverFormat {
+    /// Fixed width (80 columns), no colour, prints on A4 portrait.
+    Text,
+    /// One section per patient.
+    Markdown,
+    /// The typed sheet with spans (`tidemark-handover/1`).
+    Json,
+    /// One self-contained printable page with inline SVG charts.
+    Html,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct HandoverArgs {
+    #[command(flatten)]
+    pub common: CommonArgs,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = HandoverFormat::Text)]
+    pub format: HandoverFormat,
+    /// Regular expression for the patient identifier (first capture group, else the whole
+    /// match); tried before the built-in hospital-number and bed patterns.
+    #[arg(long, value_name = "REGEX")]
+    pub patient_id: Option<String>,
+}
+
 impl CommonArgs {
     pub fn config(&self) -> Config {
         let mut config = Config::default();
@@ -87,5 +115,6 @@ pub fn run() -> i32 {
     };
     match cli.command {
         Command::Extract(args) => extract::run(&args),
+        Command::Handover(args) => handover::run(&args),
     }
 }
