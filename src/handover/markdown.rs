@@ -37,7 +37,12 @@ pub fn write<W: Write>(out: &mut W, sheet: &Sheet) -> io::Result<()> {
         for r in rows(p) {
             let mut entries = r.entries.iter();
             if let Some(first) = entries.next() {
-                writeln!(out, "- **{}:** {}", r.label, escape(first))?;
+                writeln!(
+                    out,
+                    "- **{}:** {}",
+                    r.label,
+                    escape(first.trim_start_matches("- "))
+                )?;
             }
             for e in entries {
                 writeln!(out, "  - {}", escape(e.trim_start_matches("- ")))?;

@@ -543,7 +543,13 @@ fn profile(notes: &[NoteRef]) -> Option<ProfileLine> {
     for side in ["wet", "dry", "warm", "cold"] {
         let mut items: Vec<String> = Vec::new();
         for e in p.evidence.iter().filter(|e| e.supports == side) {
-            let l = evidence_label(&e.concept);
+            // The words as written ("Warm peripheries"), else the concept's label.
+            let l = n
+                .text
+                .get(e.span.range())
+                .map(|t| t.split_whitespace().collect::<Vec<_>>().join(" "))
+                .filter(|t| !t.is_empty() && t.chars().count() <= 40)
+                .unwrap_or_else(|| evidence_label(&e.concept));
             if !items.contains(&l) {
                 items.push(l);
             }
@@ -979,10 +985,16 @@ pub fn med_summary(m: &Medication) -> String {
 }
 
 fn med_line(m: &Medication, note: usize) -> MedLine {
+    // A class mention ("no MRA due to K") is shown as written.
+    let summary = if m.drug == class_name(m.class) {
+        m.text.split_whitespace().collect::<Vec<_>>().join(" ")
+    } else {
+        med_summary(m)
+    };
     MedLine {
         drug: m.drug.clone(),
         class: m.class,
-        summary: med_summary(m),
+        summary,
         change: m.change,
         assertion: m.assertion,
         daily_dose: m.daily_dose,
