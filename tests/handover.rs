@@ -317,3 +317,42 @@ fn an_empty_run_still_renders() {
     assert!(t.contains("No notes."));
     assert!(t.contains("before handing over"));
 }
+
+#[test]
+fn command_line_reads_files_and_checks_the_pattern() {
+    let dir = std::env::temp_dir().join(format!("tidemark-handover-cli-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("dir");
+    let a = dir.join("a.txt");
+    let b = dir.join("b.txt");
+    std::fs::write(
+        &a,
+        "Ref QX-1 12/04/2026 10:00\nPlan: bisoprolol 2.5 mg od\n",
+    )
+    .expect("a");
+    std::fs::write(&b, "Ref QX-1 12/04/2026 08:00\nfurosemide 40 mg od\n").expect("b");
+    let bin = env!("CARGO_BIN_EXE_tidemark");
+    let out = std::process::Command::new(bin)
+        .args([
+            "handover",
+            "--format",
+            "json",
+            "--patient-id",
+            r"Ref (QX-\d+)",
+        ])
+        .arg(&a)
+        .arg(&b)
+        .output()
+        .expect("runs");
+    assert!(out.status.success());
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).expect("json");
+    // One patient; the 08:00 note first although it was given second.
+    assert_eq!(v["patients"].as_array().map(Vec::len), Some(1));
+    assert_eq!(v["patients"][0]["notes"][0]["time"], "08:00");
+    let bad = std::process::Command::new(bin)
+        .args(["handover", "--patient-id", "(unclosed"])
+        .arg(&a)
+        .output()
+        .expect("runs");
+    assert_eq!(bad.status.code(), Some(2));
+    let _ = std::fs::remove_dir_all(&dir);
+}

@@ -217,8 +217,8 @@ pub fn medications(text: &str, sections: &[Section]) -> Vec<Medication> {
             }
             _ => {}
         }
-        let start = p.span_start.min(m.hit.start);
-        let end = p.span_end.max(m.hit.end);
+        let start = floor_boundary(text, p.span_start.min(m.hit.start));
+        let end = floor_boundary(text, p.span_end.max(m.hit.end)).max(m.hit.end);
         out.push(Medication {
             drug: term
                 .generic
@@ -240,6 +240,15 @@ pub fn medications(text: &str, sections: &[Section]) -> Vec<Medication> {
         });
     }
     out
+}
+
+/// The nearest char boundary at or below `i`, within the text.
+fn floor_boundary(text: &str, i: usize) -> usize {
+    let mut i = i.min(text.len());
+    while !text.is_char_boundary(i) {
+        i -= 1;
+    }
+    i
 }
 
 /// A drug name found in the text.
@@ -1727,6 +1736,18 @@ mod tests {
         assert_eq!(m.text, "IV furosemide 80 mg bd, continue");
         assert_eq!(m.span.line, 1);
         assert_eq!(m.span.column, 6);
+    }
+
+    proptest::proptest! {
+        #[test]
+        fn any_text_around_drug_names_parses_without_panic(
+            a in "\\PC{0,40}", b in "[ -~µ→İ()\\[\\]/.,;:0-9]{0,40}", c in "\\PC{0,20}"
+        ) {
+            let text = format!("{a} furosemide {b} bisoprolol{c} no MRA {b}");
+            for m in meds(&text) {
+                proptest::prop_assert_eq!(&text[m.span.range()], m.text.as_str());
+            }
+        }
     }
 
     #[test]

@@ -46,6 +46,10 @@ pub struct LoopDose {
     /// `single dose` for a stat or one-off dose, `unit not written, read as mg` ...
     #[serde(skip_serializing_if = "Vec::is_empty")]
     pub notes: Vec<String>,
+    /// The note the regime was read from, when the caller says (an index into the
+    /// patient's notes on a sheet).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub note: Option<usize>,
     pub span: Span,
 }
 
@@ -88,6 +92,12 @@ pub fn daily_mg(m: &Medication) -> Option<(f64, Vec<String>)> {
 
 /// Sum the loop diuretics among `meds` (other classes are ignored).
 pub fn loop_total(meds: &[&Medication]) -> LoopTotal {
+    let tagged: Vec<(&Medication, Option<usize>)> = meds.iter().map(|m| (*m, None)).collect();
+    loop_total_tagged(&tagged)
+}
+
+/// [`loop_total`] with the note each mention came from.
+pub fn loop_total_tagged(meds: &[(&Medication, Option<usize>)]) -> LoopTotal {
     let mut total = LoopTotal {
         complete: true,
         basis: EQUIVALENCE_BASIS,
@@ -95,7 +105,10 @@ pub fn loop_total(meds: &[&Medication]) -> LoopTotal {
     };
     let mut sum = 0.0;
     let mut any = false;
-    for m in meds.iter().filter(|m| m.class == DrugClass::LoopDiuretic) {
+    for &(m, note) in meds
+        .iter()
+        .filter(|(m, _)| m.class == DrugClass::LoopDiuretic)
+    {
         let Some((mg, notes)) = daily_mg(m) else {
             total.complete = false;
             continue;
@@ -114,6 +127,7 @@ pub fn loop_total(meds: &[&Medication]) -> LoopTotal {
             daily_mg: mg,
             oral_furosemide_mg: eq,
             notes,
+            note,
             span: m.span,
         });
     }

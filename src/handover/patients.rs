@@ -328,6 +328,17 @@ mod tests {
     }
 
     #[test]
+    fn the_config_section_reads_patient_id() {
+        // `[handover] patient_id = "..."` as the config loader deserialises it.
+        let o: crate::config::HandoverOptions =
+            serde_json::from_str(r#"{"patient_id": "Pt ref (\\w+)"}"#).expect("options");
+        assert_eq!(o.patient_id.as_deref(), Some(r"Pt ref (\w+)"));
+        let empty: crate::config::HandoverOptions = serde_json::from_str("{}").expect("default");
+        assert_eq!(empty.patient_id, None);
+        assert!(serde_json::from_str::<crate::config::HandoverOptions>(r#"{"nope": 1}"#).is_err());
+    }
+
+    #[test]
     fn times_from_the_identifier_line() {
         let ex = Extraction::default();
         let t = note_time("Ward 7 Bed 3   MRN 0000301   16/03/2026 19:30   FY1\n", &ex);

@@ -8,7 +8,7 @@
 
 use serde::Serialize;
 
-use super::diuretics::{loop_total, LoopTotal};
+use super::diuretics::{loop_total_tagged, LoopTotal};
 use super::patients::{NoteTime, PatientId};
 use crate::extract::meds::{class_name, fmt_num, unit_label};
 use crate::lint::Severity;
@@ -1086,10 +1086,11 @@ fn medications(notes: &[NoteRef], today: Option<&str>) -> (Diuretics, Vec<GdmtLi
         })
         .map(|(m, i)| med_line(m, *i))
         .collect();
-    let loops: Vec<&Medication> = current.iter().map(|(m, _)| *m).collect();
+    let loops: Vec<(&Medication, Option<usize>)> =
+        current.iter().map(|(m, i)| (*m, Some(*i))).collect();
     let diuretics = Diuretics {
         regime,
-        loop_total: loop_total(&loops),
+        loop_total: loop_total_tagged(&loops),
         changes_today,
     };
 

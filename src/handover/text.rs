@@ -244,7 +244,12 @@ pub fn rows(p: &PatientSheet) -> Vec<Row> {
     }
     for m in &d.regime {
         let mut s = med_text(m);
-        if let Some(item) = d.loop_total.items.iter().find(|i| i.span == m.source.span) {
+        if let Some(item) = d
+            .loop_total
+            .items
+            .iter()
+            .find(|i| i.span == m.source.span && i.note == Some(m.source.note))
+        {
             s.push_str(&format!(" = {} mg/day", fmt_num(item.daily_mg)));
         }
         diur.push(s);
