@@ -192,6 +192,28 @@ P: STOP IV furosemide 40 mg bd. Restart oral furosemide 20 mg od from tomorrow i
     assert_eq!(mra.status, GdmtStatus::Held);
 }
 
+#[test]
+fn a_class_named_without_a_drug() {
+    let text = "Bed 6   MRN 0000606   11/04/2026 09:00   HFrEF\n\
+On a beta-blocker. Not on an ACE inhibitor (angioedema). Spironolactone stopped.\n";
+    let n = common::NoteBuilder::new("x.txt", text)
+        .st("HFrEF", StatementKind::HfType, "hfref")
+        .build();
+    let s = build_sheet(&[n], &Matcher::default());
+    let status = |grp: &str| {
+        s.patients[0]
+            .gdmt
+            .iter()
+            .find(|g| g.group == grp)
+            .map(|g| g.status)
+            .expect(grp)
+    };
+    assert_eq!(status("beta_blocker"), GdmtStatus::On);
+    assert_eq!(status("acei_arb_arni"), GdmtStatus::NotOn);
+    assert_eq!(status("mra"), GdmtStatus::Stopped);
+    assert_eq!(status("sglt2_inhibitor"), GdmtStatus::NotDocumented);
+}
+
 use tidemark::model::StatementKind;
 
 #[test]

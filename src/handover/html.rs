@@ -38,7 +38,9 @@ th { text-align: left; vertical-align: top; width: 22mm; padding: 0.6mm 2mm 0.6m
 td { vertical-align: top; padding: 0.6mm 0; }
 td div + div { margin-top: 0.6mm; }
 .charts { display: flex; gap: 4mm; flex-wrap: wrap; margin: 2mm 0; }
-.chart { border: 1px solid #ccc; max-width: 100%; height: auto; }
+.charts figure { margin: 0; }
+.charts figcaption { font-size: 8.5pt; font-weight: bold; margin: 0 0 0.5mm; }
+.chart { border: 1px solid #ccc; max-width: 100%; height: auto; display: block; }
 .chart .axis { stroke: #000; stroke-width: 1; }
 .chart .series { stroke: #000; stroke-width: 1.5; }
 .chart .point { fill: #000; }
@@ -103,8 +105,16 @@ pub fn write<W: Write>(out: &mut W, sheet: &Sheet) -> io::Result<()> {
             .and_then(|f| balance_chart(&f.days));
         if weight.is_some() || balance.is_some() {
             writeln!(out, "<div class=\"charts\">")?;
-            for c in [weight, balance].into_iter().flatten() {
-                writeln!(out, "{c}")?;
+            for (caption, chart) in [
+                ("Weight (kg)", weight),
+                ("Daily fluid balance (mL)", balance),
+            ] {
+                if let Some(c) = chart {
+                    writeln!(
+                        out,
+                        "<figure><figcaption>{caption}</figcaption>{c}</figure>"
+                    )?;
+                }
             }
             writeln!(out, "</div>")?;
         }

@@ -1048,6 +1048,18 @@ fn medications(notes: &[NoteRef], today: Option<&str>) -> (Diuretics, Vec<GdmtLi
                 Assertion::Present => {}
             }
             if class_word {
+                // "on a beta-blocker": the class is on, though no drug is named.
+                if matches!(m.change, None | Some(MedChange::Continued)) {
+                    events.push((m.class, GdmtStatus::On, line));
+                } else if matches!(m.change, Some(MedChange::Stopped | MedChange::Held)) {
+                    let status = if m.change == Some(MedChange::Held) {
+                        GdmtStatus::Held
+                    } else {
+                        GdmtStatus::Stopped
+                    };
+                    current.retain(|(c, _)| c.class != m.class);
+                    events.push((m.class, status, line));
+                }
                 continue;
             }
             if is_today && diuretic && m.change.is_some_and(|c| c != MedChange::Continued) {
@@ -1106,11 +1118,7 @@ fn medications(notes: &[NoteRef], today: Option<&str>) -> (Diuretics, Vec<GdmtLi
             .collect();
         let (status, drugs) = if !on.is_empty() {
             (GdmtStatus::On, on)
-        } else if let Some((_, s, l)) = events
-            .iter()
-            .rev()
-            .find(|(c, s, _)| classes.contains(c) && *s != GdmtStatus::On)
-        {
+        } else if let Some((_, s, l)) = events.iter().rev().find(|(c, _, _)| classes.contains(c)) {
             (*s, vec![l.clone()])
         } else {
             (GdmtStatus::NotDocumented, Vec::new())

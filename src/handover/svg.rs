@@ -5,7 +5,7 @@ use super::html::escape;
 use super::sheet::SeriesPoint;
 use crate::extract::meds::fmt_num;
 
-const W: f64 = 320.0;
+const W: f64 = 300.0;
 const H: f64 = 130.0;
 const LEFT: f64 = 44.0;
 const RIGHT: f64 = 12.0;
