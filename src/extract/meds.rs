@@ -163,7 +163,12 @@ pub fn medications(text: &str, sections: &[Section]) -> Vec<Medication> {
         let clause_end = clause_end(text, hit.end, line.end);
         // The text between the previous hit and this one, when both share a clause, is split
         // at its last separator: before it is the previous tail, after it this head.
-        let mut head_start = clause_start;
+        // A first mention's head reaches back to the last comma at most: "cont IV, U&E AM,
+        // add metolazone" gives metolazone only "add".
+        let mut head_start = text[clause_start..hit.start]
+            .rfind(',')
+            .map(|p| clause_start + p + 1)
+            .unwrap_or(clause_start);
         let mut join = Join::None;
         if let Some(prev) = i.checked_sub(1).map(|p| &hits[p]) {
             if prev.end > clause_start && prev.end <= hit.start {
@@ -358,7 +363,7 @@ fn is_full_stop(text: &str, i: usize) -> bool {
 
 fn is_boundary_at(text: &str, i: usize) -> bool {
     match text.as_bytes()[i] {
-        b';' => true,
+        b';' | b'|' => true,
         b'.' => is_full_stop(text, i),
         _ => false,
     }
@@ -489,7 +494,7 @@ fn word_at(s: &str, start: usize, end: usize) -> Word {
     let trimmed = if raw.starts_with("->") || raw.starts_with("-->") {
         raw
     } else {
-        raw.trim_start_matches(['-', '*', '•', '"', '\''])
+        raw.trim_start_matches(['-', '*', '•', '"', '\'', '?'])
     };
     let lead = raw.len() - trimmed.len();
     let trimmed = trimmed.trim_end_matches(['"', '\'', '!', '?']);
@@ -900,7 +905,12 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
     {
         p.assertion = Assertion::Hypothetical;
         p.assertion_from = From::Head;
-    } else if head_main.trim_end().ends_with('?') {
+    } else if head_main.trim_end().ends_with('?')
+        || head_main
+            .split_whitespace()
+            .last()
+            .is_some_and(|w| w.starts_with('?'))
+    {
         p.assertion = Assertion::Possible;
         p.assertion_from = From::Head;
     }
@@ -1170,10 +1180,22 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
         for (i, w) in tail.iter().enumerate() {
             let next = tail.get(i + 1).map(|n| n.text.as_str());
             if let Some(c) = change_of(&w.text, next) {
-                // "switch to" in a tail belongs to the next drug.
-                if c == MedChange::Started && matches!(w.text.as_str(), "switch" | "change") {
-                    continue;
-                }
+                // "X ... then switched to oral": X is the regime that was replaced. A bare
+                // "switch to" with nothing after it belongs to the next drug.
+                let c = if c == MedChange::Started
+                    && matches!(
+                        w.text.as_str(),
+                        "switch" | "switched" | "change" | "changed" | "convert" | "converted"
+                    ) {
+                    if matches!(w.text.as_str(), "switch" | "change" | "convert")
+                        && i + 2 >= tail.len()
+                    {
+                        continue;
+                    }
+                    MedChange::Switched
+                } else {
+                    c
+                };
                 p.change = Some(c);
                 p.change_from = From::Tail;
                 mark(&mut p, w);
@@ -1607,6 +1629,10 @@ mod tests {
             ("decreased furosemide to 40 mg", Reduced),
             ("furosemide halved", Reduced),
             ("ramipril switched", Switched),
+            (
+                "IV furosemide 80 mg bd for 5 days, then switched to oral",
+                Switched,
+            ),
             ("continue spironolactone 25 mg od", Continued),
             ("furosemide 40 mg od (increased from 20 mg)", Increased),
         ];
@@ -1697,6 +1723,13 @@ mod tests {
             one("consider eplerenone if K allows").assertion,
             Assertion::Hypothetical
         );
+        // A question mark makes a mention possible; a verb beyond a comma is not its own.
+        let m = one("plan: cont IV, U&E AM, ?add metolazone");
+        assert_eq!(
+            (m.assertion, m.change, m.route.as_deref()),
+            (Assertion::Possible, Some(MedChange::Started), None)
+        );
+        assert_eq!(one("?start eplerenone").assertion, Assertion::Possible);
         // A condition in brackets does not make the regime conditional.
         let m = one("IV furosemide 80 mg bd, continue (d/w re reducing tomorrow if Cr stable)");
         assert_eq!(
