@@ -1262,7 +1262,12 @@ fn apply_frequency(p: &mut Parsed, freq: Option<&(usize, String, Option<f64>)>) 
                 p.daily_dose = Some(d);
                 p.note = Some("single dose".into());
             }
-            (_, Some(d)) => p.daily_dose = per_day.map(|n| d * n),
+            (_, Some(d)) => {
+                p.daily_dose = per_day.map(|n| d * n);
+                if per_day.is_some_and(|n| n < 1.0) {
+                    p.note = Some(format!("{name}: daily dose is the average over a week"));
+                }
+            }
             _ => {}
         }
     }
@@ -1523,6 +1528,10 @@ mod tests {
             assert_eq!(m.frequency.as_deref(), Some(*freq), "{text}");
             assert_eq!(m.per_day, *per_day, "{text}");
         }
+        // Intermittent doses average over the week: 2.5 mg × 3 / 7 days.
+        let metolazone = one("metolazone 2.5 mg Mon/Wed/Fri");
+        assert!((metolazone.daily_dose.expect("daily") - 2.5 * 3.0 / 7.0).abs() < 1e-9);
+        assert!(metolazone.note.as_deref().unwrap_or("").contains("average"));
         let stat = one("furosemide 80 mg IV stat");
         assert_eq!(stat.daily_dose, Some(80.0));
         assert_eq!(stat.note.as_deref(), Some("single dose"));
