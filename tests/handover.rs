@@ -378,3 +378,30 @@ fn command_line_reads_files_and_checks_the_pattern() {
     assert_eq!(bad.status.code(), Some(2));
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig::with_cases(64))]
+    /// Bad input never panics: any note text, grouped and rendered in every format.
+    #[test]
+    fn any_notes_render_in_every_format(
+        a in "\\PC{0,80}", b in "(Bed [0-9]{1,2} |MRN [0-9]{7} |Plan: |P: - |furosemide 40 mg bd|\\n|\\u{a0}|<b>|&){0,12}"
+    ) {
+        let inputs = vec![
+            common::NoteBuilder::new("a.txt", &format!("{b}{a}")).build(),
+            common::NoteBuilder::new("b.txt", &format!("{a}\n{b}")).build(),
+        ];
+        let s = build_sheet(&inputs, &Matcher::default());
+        let mut text = Vec::new();
+        handover::text::write(&mut text, &s).expect("text");
+        let text = String::from_utf8(text).expect("utf-8");
+        for l in text.lines() {
+            proptest::prop_assert!(l.chars().count() <= 80, "too wide: {:?}", l);
+        }
+        let mut out = Vec::new();
+        handover::markdown::write(&mut out, &s).expect("markdown");
+        handover::json::write(&mut out, &s).expect("json");
+        handover::html::write(&mut out, &s).expect("html");
+        let t = String::from_utf8(out).expect("utf-8");
+        proptest::prop_assert!(t.contains("before handing over"));
+    }
+}

@@ -350,8 +350,10 @@ fn is_full_stop(text: &str, i: usize) -> bool {
     }
     // The word ending in this stop: another dot inside it makes it an abbreviation.
     let word_start = text[..i]
-        .rfind(|c: char| c.is_whitespace() || c == '(')
-        .map(|p| p + 1)
+        .char_indices()
+        .rev()
+        .find(|(_, c)| c.is_whitespace() || *c == '(')
+        .map(|(p, c)| p + c.len_utf8())
         .unwrap_or(0);
     let word = &text[word_start..i];
     !(word.contains('.')
@@ -501,7 +503,7 @@ fn word_at(s: &str, start: usize, end: usize) -> Word {
     Word {
         start: start + lead,
         end: start + lead + trimmed.len(),
-        text: trimmed.to_lowercase(),
+        text: trimmed.to_ascii_lowercase(),
     }
 }
 
@@ -1175,7 +1177,7 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
     }
 
     // Tail words: change verbs, negation, conditions.
-    let tail_lower = tail_main.to_lowercase();
+    let tail_lower = tail_main.to_ascii_lowercase();
     if p.change.is_none() {
         for (i, w) in tail.iter().enumerate() {
             let next = tail.get(i + 1).map(|n| n.text.as_str());
@@ -1783,7 +1785,7 @@ mod tests {
     proptest::proptest! {
         #[test]
         fn any_text_around_drug_names_parses_without_panic(
-            a in "\\PC{0,40}", b in "[ -~µ→İ()\\[\\]/.,;:0-9]{0,40}", c in "\\PC{0,20}"
+            a in "\\PC{0,40}", b in "[ -~µ→İ\\u{a0}\\u{2009}ẞ()\\[\\]/.,;:0-9]{0,40}", c in "\\PC{0,20}"
         ) {
             let text = format!("{a} furosemide {b} bisoprolol{c} no MRA {b}");
             for m in meds(&text) {
@@ -1806,6 +1808,8 @@ mod tests {
             "bisoprolol 99999999999999999999999999 mg od",
             "furosemide 80mg→40mg",
             "furosemide\u{2192}",
+            // A non-ASCII space before a full stop (found by the property test).
+            "\u{a0}. furosemide  bisoprolol no MRA ",
         ] {
             let _ = meds(text);
         }
