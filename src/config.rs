@@ -53,12 +53,24 @@ pub struct ExtractOptions {
     pub unit_system: UnitSystem,
 }
 
+/// Options of `tidemark handover` (the `[handover]` table of `tidemark.toml`).
+#[derive(Debug, Clone, Default, PartialEq, Eq, serde::Deserialize)]
+#[serde(default, deny_unknown_fields)]
+pub struct HandoverOptions {
+    /// A regular expression that finds the patient identifier in a note (`patient_id`). Its
+    /// first capture group, or else the whole match, is the key notes are grouped by; it is
+    /// tried before the built-in hospital-number and bed patterns.
+    pub patient_id: Option<String>,
+}
+
 /// The whole run configuration.
 #[derive(Debug, Clone, Default)]
 pub struct Config {
     pub extract: ExtractOptions,
     /// Lint rule settings (the `[lint]` table of `tidemark.toml`).
     pub lint: LintConfig,
+    /// Handover sheet settings (the `[handover]` table).
+    pub handover: HandoverOptions,
 }
 
 impl Config {
@@ -69,8 +81,8 @@ impl Config {
             .map_err(|e: toml::de::Error| err("", e.to_string().trim_end().to_string()))?;
         let mut config = Config::default();
         for key in table.keys() {
-            if !["locale", "lint"].contains(&key.as_str()) {
-                return Err(unknown(key, "key", key, &["locale", "lint"]));
+            if !["locale", "lint", "handover"].contains(&key.as_str()) {
+                return Err(unknown(key, "key", key, &["locale", "lint", "handover"]));
             }
         }
         if let Some(v) = table.get("locale") {
@@ -114,6 +126,11 @@ impl Config {
                 .ok_or_else(|| err("lint", "expected a table"))?;
             config.lint = LintConfig::from_table(t, "lint")?;
         }
+        if let Some(v) = table.get("handover") {
+            config.handover = v.clone().try_into().map_err(|e: toml::de::Error| {
+                err("handover", e.to_string().trim_end().to_string())
+            })?;
+        }
         Ok(config)
     }
 
@@ -155,6 +172,13 @@ mod tests {
         assert_eq!(c.extract.date_order, DateOrder::Mdy);
         assert_eq!(c.extract.unit_system, UnitSystem::Us);
         assert!(!c.lint.rule("nyha-missing").enabled);
+    }
+
+    #[test]
+    fn parses_the_handover_table() {
+        let c = Config::from_toml_str("[handover]\npatient_id = \"Bed (\\\\d+)\"\n").unwrap();
+        assert_eq!(c.handover.patient_id.as_deref(), Some("Bed (\\d+)"));
+        assert!(Config::from_toml_str("[handover]\npatient = \"x\"\n").is_err());
     }
 
     #[test]

@@ -14,6 +14,7 @@ pub mod config;
 pub mod context;
 pub mod extract;
 pub mod grammar;
+pub mod handover;
 pub mod input;
 pub mod lint;
 pub mod lsp;

@@ -564,6 +564,7 @@ pub enum MedChange {
     Reduced,
     Held,
     Continued,
+    /// This regime was replaced by the one written after it (`X -> Y`, `X switched to Y`).
     Switched,
 }
 
@@ -584,9 +585,16 @@ pub struct Medication {
     /// Administrations per day implied by the frequency, when it is regular.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub per_day: Option<f64>,
+    /// Total amount per day in `unit` (without any `/h`): dose × per day, the sum of split
+    /// doses, or an infusion rate × 24 h.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub daily_dose: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub change: Option<MedChange>,
     pub assertion: Assertion,
+    /// How a dose was read, when that is not obvious (split doses, infusion rates, pairs).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub note: Option<String>,
     pub text: String,
     pub span: Span,
     #[serde(skip_serializing_if = "Option::is_none")]

@@ -152,6 +152,8 @@ fn model() -> (Extraction, Picture) {
         route: None,
         frequency: Some("od".into()),
         per_day: Some(1.0),
+        daily_dose: Some(25.0),
+        note: None,
         change: None,
         assertion: Assertion::Present,
         text: "spironolactone 25 mg od".into(),

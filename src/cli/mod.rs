@@ -5,6 +5,7 @@
 
 pub mod check;
 pub mod extract;
+pub mod handover;
 pub mod inputs;
 pub mod lint;
 pub mod settings;
@@ -41,6 +42,8 @@ pub enum Command {
     Check(CheckArgs),
     /// Run the language server over stdin/stdout.
     Lsp(LspArgs),
+    /// Pre-fill a handover sheet per patient from a day's notes.
+    Handover(HandoverArgs),
 }
 
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
@@ -176,6 +179,31 @@ pub struct ExtractArgs {
     pub input: InputFormat,
 }
 
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum HandoverFormat {
+    /// Fixed width (80 columns), no colour, prints on A4 portrait.
+    Text,
+    /// One section per patient.
+    Markdown,
+    /// The typed sheet with spans (`tidemark-handover/1`).
+    Json,
+    /// One self-contained printable page with inline SVG charts.
+    Html,
+}
+
+#[derive(Debug, clap::Args)]
+pub struct HandoverArgs {
+    #[command(flatten)]
+    pub common: CommonArgs,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = HandoverFormat::Text)]
+    pub format: HandoverFormat,
+    /// Regular expression for the patient identifier (first capture group, else the whole
+    /// match); tried before the built-in hospital-number and bed patterns.
+    #[arg(long, value_name = "REGEX")]
+    pub patient_id: Option<String>,
+}
+
 impl CommonArgs {
     pub fn config(&self) -> Config {
         let mut config = Config::default();
@@ -204,5 +232,6 @@ pub fn run() -> i32 {
         Command::Explain(args) => lint::explain(&args),
         Command::Check(_) => check::run(),
         Command::Lsp(_) => crate::lsp::run_stdio(),
+        Command::Handover(args) => handover::run(&args),
     }
 }

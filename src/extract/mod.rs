@@ -15,6 +15,7 @@ pub mod episodes;
 pub mod findings;
 pub mod lexicon;
 pub mod measure;
+pub mod meds;
 mod numbers;
 
 use crate::config::{DateOrder, ExtractOptions, UnitSystem};
@@ -204,7 +205,7 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
         measurements,
         findings: out.findings,
         statements: out.statements,
-        medications: Vec::new(),
+        medications: meds::medications(text, &sections),
         note_date,
     }
 }

@@ -451,7 +451,7 @@ mod prop {
             for (c, changed, start) in meds {
                 ex.medications.push(Medication {
                     drug: "d".into(), class: classes[c], dose: None, unit: None, route: None,
-                    frequency: None, per_day: None,
+                    frequency: None, per_day: None, daily_dose: None, note: None,
                     change: changed.then_some(MedChange::Continued),
                     assertion: Assertion::Present, text: "d".into(), span: span(start, 1),
                     section: Some(start % 5),

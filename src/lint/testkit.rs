@@ -151,6 +151,8 @@ impl Note {
             route: None,
             frequency: None,
             per_day: None,
+            daily_dose: None,
+            note: None,
             change,
             assertion: Assertion::Present,
             text: text.to_string(),
