@@ -1,0 +1,454 @@
+//! The batch driver: every multi-document command runs its inputs through
+//! [`for_each_document`].
+//!
+//! - Inputs stream: a walker thread lists file paths one at a time ([`inputs::Walker`]);
+//!   file contents are read inside the workers, so memory is bounded by the documents in
+//!   flight (at most [`BatchOptions::window`]), never by the size of the batch.
+//! - Work runs on a rayon pool of `--jobs` threads (default: all cores).
+//! - Results reach the `sink` on the calling thread in input order, whatever the thread
+//!   count, through a bounded reorder buffer.
+//! - Per-file problems (unreadable, binary, empty, too large, symlink loop ...) become
+//!   warnings on the document; the run goes on. They are printed to stderr as
+//!   `tidemark: SOURCE: MESSAGE` unless [`BatchOptions::report_warnings`] is off.
+//! - A progress bar is drawn on stderr for a batch that runs longer than a second, only
+//!   when stderr is a terminal. Nothing is ever mixed into stdout.
+//! - A panic while analysing one document is caught: that document is reported as skipped
+//!   (`internal-error`) and the run goes on.
+
+use std::collections::BTreeMap;
+use std::io::{self, IsTerminal};
+use std::panic::{catch_unwind, AssertUnwindSafe};
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::time::{Duration, Instant};
+
+use crossbeam_channel::{bounded, unbounded, RecvTimeoutError};
+
+use super::exit;
+use super::inputs::{self, Doc, Entry, Walker};
+use crate::model::InputWarning;
+
+/// How a batch runs.
+#[derive(Debug, Clone)]
+pub struct BatchOptions {
+    /// Worker threads; 0 means one per available core.
+    pub jobs: usize,
+    /// Files larger than this are skipped with a `too-large` warning.
+    pub max_file_size: u64,
+    /// Most documents in flight (queued, being analysed or waiting to be written in
+    /// order); 0 means four per worker.
+    pub window: usize,
+    /// Print each document's input warnings to stderr.
+    pub report_warnings: bool,
+    /// Draw a progress bar on stderr for long batches (only when stderr is a terminal).
+    pub progress: bool,
+}
+
+impl Default for BatchOptions {
+    fn default() -> Self {
+        BatchOptions {
+            jobs: 0,
+            max_file_size: inputs::DEFAULT_MAX_FILE_SIZE,
+            window: 0,
+            report_warnings: true,
+            progress: true,
+        }
+    }
+}
+
+impl BatchOptions {
+    /// The number of worker threads this batch uses.
+    pub fn effective_jobs(&self) -> usize {
+        if self.jobs > 0 {
+            self.jobs
+        } else {
+            std::thread::available_parallelism()
+                .map(|n| n.get())
+                .unwrap_or(1)
+        }
+    }
+
+    fn effective_window(&self, jobs: usize) -> usize {
+        if self.window > 0 {
+            self.window
+        } else {
+            jobs * 4
+        }
+    }
+}
+
+/// What happened in a batch.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct BatchReport {
+    /// Documents handed to the sink (skipped ones included).
+    pub documents: usize,
+    /// Documents not analysed (unreadable, binary, empty, too large, loop, internal error).
+    pub skipped: usize,
+    /// Documents with at least one input warning (skipped ones included).
+    pub warned: usize,
+    /// Bytes of document text analysed.
+    pub bytes: u64,
+}
+
+impl BatchReport {
+    /// [`exit::SKIPPED`] when any input was skipped, else [`exit::OK`].
+    pub fn exit_code(&self) -> i32 {
+        if self.skipped > 0 {
+            exit::SKIPPED
+        } else {
+            exit::OK
+        }
+    }
+}
+
+/// Read every input `paths` names (files, directories, `-` for stdin; nothing means stdin),
+/// run `per_doc` on each in parallel, and hand `(doc, result)` to `sink` in input order.
+///
+/// `per_doc` also sees skipped documents (`doc.text` is `None`); it should do the
+/// expensive work (analysis and rendering), so that `sink` only writes. When `sink`
+/// returns an error the batch stops early and the error is returned.
+pub fn for_each_document<R, F, S>(
+    paths: &[String],
+    opts: &BatchOptions,
+    per_doc: F,
+    sink: S,
+) -> io::Result<BatchReport>
+where
+    R: Send,
+    F: Fn(&Doc) -> R + Sync,
+    S: FnMut(Doc, R) -> io::Result<()>,
+{
+    for_each_entry(Walker::new(paths), opts, per_doc, sink)
+}
+
+/// [`for_each_document`] over an explicit stream of entries.
+pub fn for_each_entry<I, R, F, S>(
+    entries: I,
+    opts: &BatchOptions,
+    per_doc: F,
+    mut sink: S,
+) -> io::Result<BatchReport>
+where
+    I: Iterator<Item = Entry> + Send,
+    R: Send,
+    F: Fn(&Doc) -> R + Sync,
+    S: FnMut(Doc, R) -> io::Result<()>,
+{
+    let jobs = opts.effective_jobs();
+    let window = opts.effective_window(jobs).max(1);
+    let max_size = opts.max_file_size;
+    let pool = match rayon::ThreadPoolBuilder::new()
+        .num_threads(jobs)
+        .thread_name(|i| format!("tidemark-worker-{i}"))
+        .build()
+    {
+        Ok(p) => p,
+        Err(e) => {
+            return Err(io::Error::other(format!(
+                "cannot start worker threads: {e}"
+            )))
+        }
+    };
+
+    let (work_tx, work_rx) = bounded::<(usize, Entry)>(window);
+    let (done_tx, done_rx) = unbounded::<(usize, Doc, R)>();
+    // One permit per document in flight: taken by the walker, returned once written.
+    let (permit_tx, permit_rx) = bounded::<()>(window);
+    for _ in 0..window {
+        permit_tx.send(()).expect("permit channel has room");
+    }
+    let found = AtomicUsize::new(0);
+    let walk_done = AtomicBool::new(false);
+    let cancelled = AtomicBool::new(false);
+    let per_doc = &per_doc;
+
+    let mut report = BatchReport::default();
+    let mut progress = Progress::new(opts.progress);
+    let mut failure: Option<io::Error> = None;
+
+    std::thread::scope(|threads| {
+        let found = &found;
+        let walk_done = &walk_done;
+        let cancelled = &cancelled;
+        threads.spawn(move || {
+            for (i, entry) in entries.enumerate() {
+                if permit_rx.recv().is_err() || cancelled.load(Ordering::Relaxed) {
+                    break;
+                }
+                found.fetch_add(1, Ordering::Relaxed);
+                if work_tx.send((i, entry)).is_err() {
+                    break;
+                }
+            }
+            walk_done.store(true, Ordering::Relaxed);
+        });
+
+        pool.in_place_scope(|scope| {
+            for _ in 0..jobs {
+                let rx = work_rx.clone();
+                let tx = done_tx.clone();
+                scope.spawn(move |_| {
+                    for (i, entry) in rx {
+                        if cancelled.load(Ordering::Relaxed) {
+                            break;
+                        }
+                        let mut doc = inputs::read_entry(entry, max_size);
+                        let r = run_guarded(per_doc, &mut doc);
+                        if tx.send((i, doc, r)).is_err() {
+                            break;
+                        }
+                    }
+                });
+            }
+            drop(work_rx);
+            drop(done_tx);
+
+            let mut pending: BTreeMap<usize, (Doc, R)> = BTreeMap::new();
+            let mut next = 0usize;
+            loop {
+                match done_rx.recv_timeout(Duration::from_millis(200)) {
+                    Ok((i, doc, r)) => {
+                        pending.insert(i, (doc, r));
+                    }
+                    Err(RecvTimeoutError::Timeout) => {}
+                    Err(RecvTimeoutError::Disconnected) => break,
+                }
+                while let Some((doc, r)) = pending.remove(&next) {
+                    next += 1;
+                    report.documents += 1;
+                    report.skipped += usize::from(doc.is_skipped());
+                    report.warned += usize::from(!doc.warnings.is_empty());
+                    report.bytes += doc.text.as_ref().map_or(0, |t| t.len() as u64);
+                    if opts.report_warnings {
+                        progress.suspend(|| {
+                            for w in &doc.warnings {
+                                eprintln!("tidemark: {}: {}", doc.source, w.message);
+                            }
+                        });
+                    }
+                    if failure.is_none() {
+                        if let Err(e) = sink(doc, r) {
+                            failure = Some(e);
+                            cancelled.store(true, Ordering::Relaxed);
+                        }
+                    }
+                    let _ = permit_tx.send(());
+                }
+                let total = walk_done
+                    .load(Ordering::Relaxed)
+                    .then(|| found.load(Ordering::Relaxed));
+                progress.tick(next, found.load(Ordering::Relaxed), total);
+            }
+            // Let the walker finish if it is waiting for a permit.
+            drop(permit_tx);
+        });
+    });
+    progress.finish();
+    match failure {
+        Some(e) => Err(e),
+        None => Ok(report),
+    }
+}
+
+/// Run `per_doc`, turning a panic into a skipped document so the batch goes on.
+fn run_guarded<R>(per_doc: &(impl Fn(&Doc) -> R + Sync), doc: &mut Doc) -> R {
+    match catch_unwind(AssertUnwindSafe(|| per_doc(doc))) {
+        Ok(r) => r,
+        Err(payload) => {
+            let what = payload
+                .downcast_ref::<&str>()
+                .map(|s| s.to_string())
+                .or_else(|| payload.downcast_ref::<String>().cloned())
+                .unwrap_or_else(|| "unknown".into());
+            doc.text = None;
+            doc.warnings.push(InputWarning {
+                code: "internal-error",
+                message: format!("internal error while analysing this document ({what}); skipped"),
+                offset: None,
+            });
+            per_doc(doc)
+        }
+    }
+}
+
+/// A progress bar on stderr, drawn only for long batches on a terminal.
+struct Progress {
+    enabled: bool,
+    started: Instant,
+    bar: Option<indicatif::ProgressBar>,
+}
+
+impl Progress {
+    fn new(wanted: bool) -> Progress {
+        Progress {
+            enabled: wanted && io::stderr().is_terminal(),
+            started: Instant::now(),
+            bar: None,
+        }
+    }
+
+    fn tick(&mut self, done: usize, found: usize, total: Option<usize>) {
+        if !self.enabled {
+            return;
+        }
+        if self.bar.is_none() {
+            // Long batches only: more than a second in, with work still to do.
+            if self.started.elapsed() < Duration::from_secs(1) || total == Some(done) {
+                return;
+            }
+            let bar = indicatif::ProgressBar::with_draw_target(
+                Some(found as u64),
+                indicatif::ProgressDrawTarget::stderr(),
+            );
+            if let Ok(style) = indicatif::ProgressStyle::with_template(
+                "{elapsed_precise} [{bar:40}] {pos}/{len} documents ({per_sec})",
+            ) {
+                bar.set_style(style.progress_chars("=> "));
+            }
+            self.bar = Some(bar);
+        }
+        if let Some(bar) = &self.bar {
+            bar.set_length(total.unwrap_or(found) as u64);
+            bar.set_position(done as u64);
+        }
+    }
+
+    fn suspend(&self, f: impl FnOnce()) {
+        match &self.bar {
+            Some(bar) => bar.suspend(f),
+            None => f(),
+        }
+    }
+
+    fn finish(self) {
+        if let Some(bar) = self.bar {
+            bar.finish_and_clear();
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::path::PathBuf;
+
+    fn entries(n: usize) -> Vec<Entry> {
+        (0..n)
+            .map(|i| Entry::Problem(format!("doc{i}"), "unreadable", "test".into()))
+            .collect()
+    }
+
+    fn quiet(jobs: usize) -> BatchOptions {
+        BatchOptions {
+            jobs,
+            report_warnings: false,
+            progress: false,
+            ..BatchOptions::default()
+        }
+    }
+
+    #[test]
+    fn order_is_input_order_whatever_the_thread_count() {
+        for jobs in [1, 2, 3, 8] {
+            let mut seen = Vec::new();
+            let report = for_each_entry(
+                entries(200).into_iter(),
+                &quiet(jobs),
+                |d| {
+                    // Uneven work so that later documents often finish first.
+                    let n: usize = d.source[3..].parse().unwrap();
+                    std::thread::sleep(Duration::from_micros(((n * 7919) % 13) as u64 * 50));
+                    n
+                },
+                |d, n| {
+                    assert_eq!(d.source, format!("doc{n}"));
+                    seen.push(n);
+                    Ok(())
+                },
+            )
+            .unwrap();
+            assert_eq!(seen, (0..200).collect::<Vec<_>>(), "jobs={jobs}");
+            assert_eq!(report.documents, 200);
+            assert_eq!(report.skipped, 200);
+        }
+    }
+
+    #[test]
+    fn documents_in_flight_never_exceed_the_window() {
+        let in_flight = AtomicUsize::new(0);
+        let peak = AtomicUsize::new(0);
+        let opts = BatchOptions {
+            window: 3,
+            ..quiet(4)
+        };
+        let in_flight_ref = &in_flight;
+        for_each_entry(
+            entries(100).into_iter(),
+            &opts,
+            |_| {
+                let now = in_flight_ref.fetch_add(1, Ordering::SeqCst) + 1;
+                peak.fetch_max(now, Ordering::SeqCst);
+            },
+            |_, ()| {
+                in_flight_ref.fetch_sub(1, Ordering::SeqCst);
+                Ok(())
+            },
+        )
+        .unwrap();
+        assert!(peak.load(Ordering::SeqCst) <= 3);
+        assert_eq!(in_flight.load(Ordering::SeqCst), 0);
+    }
+
+    #[test]
+    fn a_sink_error_stops_the_batch() {
+        let mut written = 0;
+        let err = for_each_entry(
+            entries(1000).into_iter(),
+            &quiet(2),
+            |_| (),
+            |_, ()| {
+                written += 1;
+                if written == 5 {
+                    Err(io::Error::other("disk full"))
+                } else {
+                    Ok(())
+                }
+            },
+        )
+        .unwrap_err();
+        assert_eq!(err.to_string(), "disk full");
+        assert_eq!(written, 5);
+    }
+
+    #[test]
+    fn a_panic_in_one_document_skips_it_and_the_run_goes_on() {
+        let mut got = Vec::new();
+        let report = for_each_entry(
+            vec![
+                Entry::File(PathBuf::from("Cargo.toml")),
+                Entry::File(PathBuf::from("Cargo.lock")),
+            ]
+            .into_iter(),
+            &quiet(2),
+            |d| {
+                if d.source == "Cargo.toml" && d.text.is_some() {
+                    panic!("boom");
+                }
+                d.text.is_some()
+            },
+            |d, analysed| {
+                got.push((d.source, analysed, d.warnings.first().map(|w| w.code)));
+                Ok(())
+            },
+        )
+        .unwrap();
+        assert_eq!(
+            got,
+            vec![
+                ("Cargo.toml".to_string(), false, Some("internal-error")),
+                ("Cargo.lock".to_string(), true, None),
+            ]
+        );
+        assert_eq!(report.skipped, 1);
+        assert_eq!(report.exit_code(), exit::SKIPPED);
+    }
+}
