@@ -139,6 +139,8 @@ where
     let pool = match rayon::ThreadPoolBuilder::new()
         .num_threads(jobs)
         .thread_name(|i| format!("tidemark-worker-{i}"))
+        // The same stack as a main thread, so deep input nests as deep on a worker.
+        .stack_size(8 << 20)
         .build()
     {
         Ok(p) => p,
