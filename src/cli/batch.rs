@@ -35,7 +35,7 @@ pub struct BatchOptions {
     /// Files larger than this are skipped with a `too-large` warning.
     pub max_file_size: u64,
     /// Most documents in flight (queued, being analysed or waiting to be written in
-    /// order); 0 means four per worker.
+    /// order); 0 means eight per worker.
     pub window: usize,
     /// Print each document's input warnings to stderr.
     pub report_warnings: bool,
@@ -71,7 +71,7 @@ impl BatchOptions {
         if self.window > 0 {
             self.window
         } else {
-            jobs * 4
+            jobs * 8
         }
     }
 }
