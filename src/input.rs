@@ -20,15 +20,31 @@ pub enum Decoded {
 
 /// Decode bytes read from a file or stdin.
 pub fn decode(bytes: &[u8]) -> Decoded {
-    if bytes.is_empty() || bytes.iter().all(|b| b.is_ascii_whitespace()) {
-        return Decoded::Skipped(InputWarning {
+    match check(bytes) {
+        Some(skipped) => Decoded::Skipped(skipped),
+        None => finish(bytes.to_vec()),
+    }
+}
+
+/// [`decode`] taking ownership of the bytes: valid UTF-8 becomes the text without a copy.
+pub fn decode_vec(bytes: Vec<u8>) -> Decoded {
+    match check(&bytes) {
+        Some(skipped) => Decoded::Skipped(skipped),
+        None => finish(bytes),
+    }
+}
+
+/// Why the bytes are not analysed at all, if they are not.
+fn check(bytes: &[u8]) -> Option<InputWarning> {
+    if bytes.iter().all(|b| b.is_ascii_whitespace()) {
+        return Some(InputWarning {
             code: "empty",
             message: "the document is empty".into(),
             offset: None,
         });
     }
-    if let Some(pos) = bytes.iter().position(|&b| b == 0) {
-        return Decoded::Skipped(InputWarning {
+    if let Some(pos) = memchr::memchr(0, bytes) {
+        return Some(InputWarning {
             code: "binary",
             message: format!("NUL byte at offset {pos}: looks like a binary file, skipped"),
             offset: Some(pos),
@@ -40,17 +56,25 @@ pub fn decode(bytes: &[u8]) -> Decoded {
         .filter(|&&b| b < 0x20 && !matches!(b, b'\n' | b'\r' | b'\t' | 0x0c))
         .count();
     if controls * 10 > sample.len() {
-        return Decoded::Skipped(InputWarning {
+        return Some(InputWarning {
             code: "binary",
             message: "mostly control characters: looks like a binary file, skipped".into(),
             offset: None,
         });
     }
+    None
+}
+
+fn finish(mut bytes: Vec<u8>) -> Decoded {
+    // A byte-order mark is not note text; keep offsets honest by replacing it with spaces.
+    if bytes.starts_with("\u{feff}".as_bytes()) {
+        bytes[..3].copy_from_slice(b"   ");
+    }
     let mut warnings = Vec::new();
-    let text = match std::str::from_utf8(bytes) {
-        Ok(s) => s.to_owned(),
+    let text = match String::from_utf8(bytes) {
+        Ok(s) => s,
         Err(e) => {
-            let at = e.valid_up_to();
+            let at = e.utf8_error().valid_up_to();
             warnings.push(InputWarning {
                 code: "invalid-utf8",
                 message: format!(
@@ -58,13 +82,8 @@ pub fn decode(bytes: &[u8]) -> Decoded {
                 ),
                 offset: Some(at),
             });
-            String::from_utf8_lossy(bytes).into_owned()
+            String::from_utf8_lossy(e.as_bytes()).into_owned()
         }
-    };
-    let text = match text.strip_prefix('\u{feff}') {
-        // A byte-order mark is not note text; keep offsets honest by replacing it with a space.
-        Some(rest) => format!("{}{rest}", " ".repeat('\u{feff}'.len_utf8())),
-        None => text,
     };
     Decoded::Text { text, warnings }
 }
@@ -88,6 +107,37 @@ mod tests {
     #[test]
     fn nul_bytes_are_binary() {
         assert!(matches!(decode(b"ab\0cd"), Decoded::Skipped(w) if w.code == "binary"));
+    }
+
+    #[test]
+    fn a_byte_order_mark_becomes_spaces_and_offsets_stay_put() {
+        // U+FEFF encoded in UTF-8 is EF BB BF (Unicode Standard, section 23.8).
+        let bytes = b"\xef\xbb\xbfBP 120/80";
+        for d in [decode(bytes), decode_vec(bytes.to_vec())] {
+            match d {
+                Decoded::Text { text, warnings } => {
+                    assert_eq!(text, "   BP 120/80");
+                    assert!(warnings.is_empty());
+                }
+                other => panic!("expected text, got {other:?}"),
+            }
+        }
+    }
+
+    #[test]
+    fn owned_and_borrowed_decoding_agree() {
+        for bytes in [
+            &b"ok text"[..],
+            b"bad \xc3\x28 here",
+            b"\0",
+            b"",
+            b"\x01\x02\x03\x04",
+        ] {
+            assert_eq!(
+                format!("{:?}", decode(bytes)),
+                format!("{:?}", decode_vec(bytes.to_vec()))
+            );
+        }
     }
 
     #[test]

@@ -14,7 +14,7 @@ use std::collections::HashSet;
 use std::io::Read;
 use std::path::{Path, PathBuf};
 
-use crate::input::{decode, Decoded};
+use crate::input::{decode, decode_vec, Decoded};
 use crate::model::InputWarning;
 
 /// Default size limit for one input file (32 MiB).
@@ -32,7 +32,16 @@ pub struct Doc {
 
 impl Doc {
     pub fn from_bytes(source: String, bytes: &[u8]) -> Doc {
-        match decode(bytes) {
+        Doc::from_decoded(source, decode(bytes))
+    }
+
+    /// [`Doc::from_bytes`] without copying valid UTF-8.
+    pub fn from_vec(source: String, bytes: Vec<u8>) -> Doc {
+        Doc::from_decoded(source, decode_vec(bytes))
+    }
+
+    fn from_decoded(source: String, decoded: Decoded) -> Doc {
+        match decoded {
             Decoded::Text { text, warnings } => Doc {
                 source,
                 text: Some(text),
@@ -282,7 +291,7 @@ pub fn read_file(path: &Path, max_size: u64) -> Doc {
             .read_to_end(&mut buf)
         {
             Ok(_) if buf.len() as u64 > max_size => too_large(source, max_size),
-            Ok(_) => Doc::from_bytes(source, &buf),
+            Ok(_) => Doc::from_vec(source, buf),
             Err(e) => Doc::failed(source, "unreadable", format!("cannot read stdin: {e}")),
         };
     }
@@ -301,7 +310,7 @@ pub fn read_file(path: &Path, max_size: u64) -> Doc {
     }
     match file.take(max_size + 1).read_to_end(&mut buf) {
         Ok(_) if buf.len() as u64 > max_size => too_large(source, max_size),
-        Ok(_) => Doc::from_bytes(source, &buf),
+        Ok(_) => Doc::from_vec(source, buf),
         Err(e) => Doc::failed(source, "unreadable", format!("cannot read: {e}")),
     }
 }
