@@ -7,10 +7,37 @@ use std::process::Command;
 /// async socket runtimes). Common practice, no source: the list names the widely used ones
 /// on crates.io by their purpose.
 const NETWORK_CRATES: &[&str] = &[
-    "reqwest", "hyper", "h2", "h3", "ureq", "curl", "curl-sys", "isahc", "surf", "attohttpc",
-    "http-client", "awc", "actix-web", "axum", "warp", "tiny_http", "tokio", "async-std", "mio",
-    "socket2", "rustls", "native-tls", "openssl", "openssl-sys", "tungstenite", "ws",
-    "quinn", "smol", "libp2p", "trust-dns-resolver", "hickory-resolver",
+    "reqwest",
+    "hyper",
+    "h2",
+    "h3",
+    "ureq",
+    "curl",
+    "curl-sys",
+    "isahc",
+    "surf",
+    "attohttpc",
+    "http-client",
+    "awc",
+    "actix-web",
+    "axum",
+    "warp",
+    "tiny_http",
+    "tokio",
+    "async-std",
+    "mio",
+    "socket2",
+    "rustls",
+    "native-tls",
+    "openssl",
+    "openssl-sys",
+    "tungstenite",
+    "ws",
+    "quinn",
+    "smol",
+    "libp2p",
+    "trust-dns-resolver",
+    "hickory-resolver",
 ];
 
 #[test]
@@ -41,11 +68,20 @@ fn no_network_crate_in_the_dependency_tree() {
         .lines()
         .filter_map(|l| l.split_whitespace().next())
         .collect();
-    assert!(names.contains(&"tidemark"), "unexpected cargo tree output: {tree}");
-    assert!(names.contains(&"rayon"), "unexpected cargo tree output: {tree}");
+    assert!(
+        names.contains(&"tidemark"),
+        "unexpected cargo tree output: {tree}"
+    );
+    assert!(
+        names.contains(&"rayon"),
+        "unexpected cargo tree output: {tree}"
+    );
     let found: Vec<&&str> = NETWORK_CRATES
         .iter()
         .filter(|c| names.contains(c))
         .collect();
-    assert!(found.is_empty(), "network crates in the dependency tree: {found:?}");
+    assert!(
+        found.is_empty(),
+        "network crates in the dependency tree: {found:?}"
+    );
 }

@@ -3,7 +3,8 @@
 //!
 //! - Inputs stream: a walker thread lists file paths one at a time ([`inputs::Walker`]);
 //!   file contents are read inside the workers, so memory is bounded by the documents in
-//!   flight (at most [`BatchOptions::window`]), never by the size of the batch.
+//!   flight (at most [`BatchOptions::window`] documents and about
+//!   [`BatchOptions::max_bytes_in_flight`] bytes), never by the size of the batch.
 //! - Work runs on a rayon pool of `--jobs` threads (default: all cores).
 //! - Results reach the `sink` on the calling thread in input order, whatever the thread
 //!   count, through a bounded reorder buffer.
@@ -19,6 +20,7 @@ use std::collections::BTreeMap;
 use std::io::{self, IsTerminal};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use std::sync::{Condvar, Mutex};
 use std::time::{Duration, Instant};
 
 use crossbeam_channel::{bounded, unbounded, RecvTimeoutError};
@@ -37,6 +39,9 @@ pub struct BatchOptions {
     /// Most documents in flight (queued, being analysed or waiting to be written in
     /// order); 0 means eight per worker.
     pub window: usize,
+    /// Most bytes of input in flight (by file size when listed); a file larger than this
+    /// still runs, alone. 0 means 64 MiB.
+    pub max_bytes_in_flight: u64,
     /// Print each document's input warnings to stderr.
     pub report_warnings: bool,
     /// Draw a progress bar on stderr for long batches (only when stderr is a terminal).
@@ -49,6 +54,7 @@ impl Default for BatchOptions {
             jobs: 0,
             max_file_size: inputs::DEFAULT_MAX_FILE_SIZE,
             window: 0,
+            max_bytes_in_flight: 0,
             report_warnings: true,
             progress: true,
         }
@@ -64,6 +70,14 @@ impl BatchOptions {
             std::thread::available_parallelism()
                 .map(|n| n.get())
                 .unwrap_or(1)
+        }
+    }
+
+    fn effective_bytes(&self) -> u64 {
+        if self.max_bytes_in_flight > 0 {
+            self.max_bytes_in_flight
+        } else {
+            64 << 20
         }
     }
 
@@ -151,13 +165,10 @@ where
         }
     };
 
-    let (work_tx, work_rx) = bounded::<(usize, Entry)>(window);
-    let (done_tx, done_rx) = unbounded::<(usize, Doc, R)>();
-    // One permit per document in flight: taken by the walker, returned once written.
-    let (permit_tx, permit_rx) = bounded::<()>(window);
-    for _ in 0..window {
-        permit_tx.send(()).expect("permit channel has room");
-    }
+    let (work_tx, work_rx) = bounded::<(usize, Entry, u64)>(window);
+    let (done_tx, done_rx) = unbounded::<(usize, Doc, R, u64)>();
+    // Taken by the walker for each document, given back once it is written.
+    let budget = Budget::new(window, opts.effective_bytes());
     let found = AtomicUsize::new(0);
     let walk_done = AtomicBool::new(false);
     let cancelled = AtomicBool::new(false);
@@ -171,13 +182,18 @@ where
         let found = &found;
         let walk_done = &walk_done;
         let cancelled = &cancelled;
+        let budget = &budget;
         threads.spawn(move || {
             for (i, entry) in entries.enumerate() {
-                if permit_rx.recv().is_err() || cancelled.load(Ordering::Relaxed) {
+                let size = match &entry {
+                    Entry::File(p) => std::fs::metadata(p).map_or(0, |m| m.len().min(max_size)),
+                    Entry::Problem(..) => 0,
+                };
+                if !budget.acquire(size, cancelled) {
                     break;
                 }
                 found.fetch_add(1, Ordering::Relaxed);
-                if work_tx.send((i, entry)).is_err() {
+                if work_tx.send((i, entry, size)).is_err() {
                     break;
                 }
             }
@@ -189,13 +205,13 @@ where
                 let rx = work_rx.clone();
                 let tx = done_tx.clone();
                 scope.spawn(move |_| {
-                    for (i, entry) in rx {
+                    for (i, entry, size) in rx {
                         if cancelled.load(Ordering::Relaxed) {
                             break;
                         }
                         let mut doc = inputs::read_entry(entry, max_size);
                         let r = run_guarded(per_doc, &mut doc);
-                        if tx.send((i, doc, r)).is_err() {
+                        if tx.send((i, doc, r, size)).is_err() {
                             break;
                         }
                     }
@@ -204,17 +220,17 @@ where
             drop(work_rx);
             drop(done_tx);
 
-            let mut pending: BTreeMap<usize, (Doc, R)> = BTreeMap::new();
+            let mut pending: BTreeMap<usize, (Doc, R, u64)> = BTreeMap::new();
             let mut next = 0usize;
             loop {
                 match done_rx.recv_timeout(Duration::from_millis(200)) {
-                    Ok((i, doc, r)) => {
-                        pending.insert(i, (doc, r));
+                    Ok((i, doc, r, size)) => {
+                        pending.insert(i, (doc, r, size));
                     }
                     Err(RecvTimeoutError::Timeout) => {}
                     Err(RecvTimeoutError::Disconnected) => break,
                 }
-                while let Some((doc, r)) = pending.remove(&next) {
+                while let Some((doc, r, size)) = pending.remove(&next) {
                     next += 1;
                     report.documents += 1;
                     report.skipped += usize::from(doc.is_skipped());
@@ -231,23 +247,74 @@ where
                         if let Err(e) = sink(doc, r) {
                             failure = Some(e);
                             cancelled.store(true, Ordering::Relaxed);
+                            budget.wake();
                         }
                     }
-                    let _ = permit_tx.send(());
+                    budget.release(size);
                 }
                 let total = walk_done
                     .load(Ordering::Relaxed)
                     .then(|| found.load(Ordering::Relaxed));
                 progress.tick(next, found.load(Ordering::Relaxed), total);
             }
-            // Let the walker finish if it is waiting for a permit.
-            drop(permit_tx);
+            // Let the walker finish if it is still waiting for room.
+            cancelled.store(true, Ordering::Relaxed);
+            budget.wake();
         });
     });
     progress.finish();
     match failure {
         Some(e) => Err(e),
         None => Ok(report),
+    }
+}
+
+/// Documents and bytes in flight, bounded; the walker waits for room.
+struct Budget {
+    state: Mutex<(usize, u64)>,
+    room: Condvar,
+    max_docs: usize,
+    max_bytes: u64,
+}
+
+impl Budget {
+    fn new(max_docs: usize, max_bytes: u64) -> Budget {
+        Budget {
+            state: Mutex::new((0, 0)),
+            room: Condvar::new(),
+            max_docs,
+            max_bytes,
+        }
+    }
+
+    /// Wait for room for one document of `size` bytes; false when the batch is cancelled.
+    /// A document always fits when nothing else is in flight.
+    fn acquire(&self, size: u64, cancelled: &AtomicBool) -> bool {
+        let mut st = self.state.lock().unwrap_or_else(|e| e.into_inner());
+        loop {
+            if cancelled.load(Ordering::Relaxed) {
+                return false;
+            }
+            let (docs, bytes) = *st;
+            if docs == 0 || (docs < self.max_docs && bytes + size <= self.max_bytes) {
+                *st = (docs + 1, bytes + size);
+                return true;
+            }
+            st = self.room.wait(st).unwrap_or_else(|e| e.into_inner());
+        }
+    }
+
+    fn release(&self, size: u64) {
+        let mut st = self.state.lock().unwrap_or_else(|e| e.into_inner());
+        st.0 -= 1;
+        st.1 -= size;
+        drop(st);
+        self.room.notify_all();
+    }
+
+    fn wake(&self) {
+        let _guard = self.state.lock().unwrap_or_else(|e| e.into_inner());
+        self.room.notify_all();
     }
 }
 
@@ -398,6 +465,52 @@ mod tests {
         .unwrap();
         assert!(peak.load(Ordering::SeqCst) <= 3);
         assert_eq!(in_flight.load(Ordering::SeqCst), 0);
+    }
+
+    #[test]
+    fn bytes_in_flight_stay_under_the_budget_but_a_big_file_still_runs() {
+        let dir = tempfile::tempdir().unwrap();
+        let mut entries = Vec::new();
+        for i in 0..30 {
+            let p = dir.path().join(format!("n{i:02}.txt"));
+            // One file larger than the whole budget: it must run, alone.
+            let size = if i == 17 { 9000 } else { 1000 };
+            std::fs::write(&p, "a".repeat(size)).unwrap();
+            entries.push(Entry::File(p));
+        }
+        let bytes = AtomicUsize::new(0);
+        let peak = AtomicUsize::new(0);
+        let small_peak = AtomicUsize::new(0);
+        let opts = BatchOptions {
+            max_bytes_in_flight: 2500,
+            ..quiet(4)
+        };
+        let mut count = 0;
+        for_each_entry(
+            entries.into_iter(),
+            &opts,
+            |d| {
+                let n = d.text.as_ref().unwrap().len();
+                let now = bytes.fetch_add(n, Ordering::SeqCst) + n;
+                peak.fetch_max(now, Ordering::SeqCst);
+                if now < 9000 {
+                    small_peak.fetch_max(now, Ordering::SeqCst);
+                }
+                std::thread::sleep(Duration::from_millis(1));
+                n
+            },
+            |_, n| {
+                bytes.fetch_sub(n, Ordering::SeqCst);
+                count += 1;
+                Ok(())
+            },
+        )
+        .unwrap();
+        assert_eq!(count, 30);
+        // Two 1000-byte files fit in 2500 bytes, three do not; the big one runs alone.
+        assert_eq!(peak.load(Ordering::SeqCst), 9000);
+        assert!(small_peak.load(Ordering::SeqCst) <= 2000);
+        assert_eq!(bytes.load(Ordering::SeqCst), 0);
     }
 
     #[test]
