@@ -417,3 +417,55 @@ fn progress_never_reaches_stdout_and_stderr_has_only_warnings_when_piped() {
         assert!(line.starts_with("tidemark: "), "{line}");
     }
 }
+
+#[test]
+fn special_files_never_hang_the_run() {
+    let dir = dir_with_good_note();
+    // A named pipe with a note's name: a walk reads regular files only, so it is passed by
+    // instead of blocking on a read that never ends.
+    let fifo = dir.path().join("pipe.txt");
+    let made = Command::new("mkfifo").arg(&fifo).status();
+    assert!(made.is_ok_and(|s| s.success()), "mkfifo");
+    let out = tidemark(&["extract", p(dir.path())]);
+    let v = stdout_json(&out);
+    assert_eq!(documents(&v).len(), 1, "{v}");
+    assert_good_note_processed(&v);
+    assert_eq!(out.status.code(), Some(0));
+
+    // An endless device named explicitly stops at the size limit.
+    let out = tidemark(&["extract", "--max-file-size", "1K", "/dev/zero", p(dir.path())]);
+    let v = stdout_json(&out);
+    assert_eq!(warning_codes(doc(&v, "/dev/zero")), vec!["too-large"]);
+    assert_good_note_processed(&v);
+    assert_eq!(out.status.code(), Some(3));
+}
+
+#[test]
+fn a_closed_stdout_ends_the_run_quietly() {
+    use std::io::Read;
+    let corpus = Path::new(concat!(env!("CARGO_MANIFEST_DIR"), "/corpora-synthetic"));
+    let mut notes: Vec<PathBuf> = fs::read_dir(corpus)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|e| e == "txt"))
+        .collect();
+    notes.sort();
+    // Far more output than a pipe buffer and the writer's buffer hold.
+    let many: Vec<&PathBuf> = notes.iter().cycle().take(notes.len() * 40).collect();
+    assert!(many.len() > 1000);
+    let mut child = Command::new(env!("CARGO_BIN_EXE_tidemark"))
+        .args(["extract", "--format", "jsonl"])
+        .args(many)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    let mut first = [0u8; 16];
+    child.stdout.as_mut().unwrap().read_exact(&mut first).unwrap();
+    drop(child.stdout.take());
+    let out = child.wait_with_output().unwrap();
+    assert_eq!(&first[..10], b"{\"source\":");
+    assert!(!stderr(&out).contains("cannot write"), "{}", stderr(&out));
+    assert!(!stderr(&out).contains("panicked"), "{}", stderr(&out));
+    assert_eq!(out.status.code(), Some(0));
+}
