@@ -369,7 +369,7 @@ impl Progress {
                 indicatif::ProgressDrawTarget::stderr(),
             );
             if let Ok(style) = indicatif::ProgressStyle::with_template(
-                "{elapsed_precise} [{bar:40}] {pos}/{len} documents ({per_sec})",
+                "{elapsed_precise} [{bar:40}] {human_pos}/{human_len} documents, eta {eta}",
             ) {
                 bar.set_style(style.progress_chars("=> "));
             }
