@@ -433,7 +433,13 @@ fn special_files_never_hang_the_run() {
     assert_eq!(out.status.code(), Some(0));
 
     // An endless device named explicitly stops at the size limit.
-    let out = tidemark(&["extract", "--max-file-size", "1K", "/dev/zero", p(dir.path())]);
+    let out = tidemark(&[
+        "extract",
+        "--max-file-size",
+        "1K",
+        "/dev/zero",
+        p(dir.path()),
+    ]);
     let v = stdout_json(&out);
     assert_eq!(warning_codes(doc(&v, "/dev/zero")), vec!["too-large"]);
     assert_good_note_processed(&v);
@@ -461,7 +467,12 @@ fn a_closed_stdout_ends_the_run_quietly() {
         .spawn()
         .unwrap();
     let mut first = [0u8; 16];
-    child.stdout.as_mut().unwrap().read_exact(&mut first).unwrap();
+    child
+        .stdout
+        .as_mut()
+        .unwrap()
+        .read_exact(&mut first)
+        .unwrap();
     drop(child.stdout.take());
     let out = child.wait_with_output().unwrap();
     assert_eq!(&first[..10], b"{\"source\":");
