@@ -269,6 +269,76 @@ where
     }
 }
 
+/// One document rendered by a command, on a worker thread.
+#[derive(Debug, Clone, Default)]
+pub struct Rendered {
+    /// The document's output: for [`Framing::JsonRun`], one document rendered with
+    /// [`crate::render::json::pretty_document`]; otherwise the bytes exactly as written.
+    pub bytes: Vec<u8>,
+    /// The document has findings at the fail level (`lint`): the run exits 1.
+    pub fails: bool,
+}
+
+/// How a command frames its documents' output.
+#[derive(Debug, Clone)]
+pub enum Framing {
+    /// One JSON run object `{"schema": ..., "documents": [...]}`, streamed.
+    JsonRun(&'static str),
+    /// Documents written one after another (JSON lines, text), then `footer`.
+    Plain { footer: Vec<u8> },
+}
+
+/// A whole multi-document command in one call: open the output (`--output` or stdout),
+/// run the batch with `--jobs` and `--max-file-size`, write each [`Rendered`] document in
+/// order inside `framing`, and return the exit code ([`exit`]).
+pub fn run_command<F>(common: &super::CommonArgs, framing: Framing, per_doc: F) -> i32
+where
+    F: Fn(&Doc) -> Rendered + Sync,
+{
+    use crate::render::json::RunWriter;
+    use std::io::Write;
+
+    let mut out = match common.open_output() {
+        Ok(o) => o,
+        Err(e) => {
+            eprintln!("tidemark: {e}");
+            return exit::USAGE;
+        }
+    };
+    let mut fails = false;
+    let result = (|| {
+        let mut run = match &framing {
+            Framing::JsonRun(schema) => Some(RunWriter::start(&mut out, schema)?),
+            Framing::Plain { .. } => None,
+        };
+        let report = for_each_document(&common.paths, &common.batch(), per_doc, |_, r| {
+            fails |= r.fails;
+            match run.as_mut() {
+                Some(run) => run.document(&mut out, &r.bytes),
+                None => out.write_all(&r.bytes),
+            }
+        })?;
+        match (run, &framing) {
+            (Some(run), _) => run.end(&mut out)?,
+            (None, Framing::Plain { footer }) => out.write_all(footer)?,
+            (None, _) => {}
+        }
+        out.flush()?;
+        Ok::<_, io::Error>(report)
+    })();
+    let report = match result.and_then(|r| out.finish().map(|_| r)) {
+        Ok(r) => r,
+        // A reader that stopped early (`| head`) is not an error.
+        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => return exit::OK,
+        Err(e) => {
+            eprintln!("tidemark: cannot write output: {e}");
+            return exit::USAGE;
+        }
+    };
+    let findings = if fails { exit::FINDINGS } else { exit::OK };
+    exit::combine(report.exit_code(), findings)
+}
+
 /// Documents and bytes in flight, bounded; the walker waits for room.
 struct Budget {
     state: Mutex<(usize, u64)>,
@@ -511,6 +581,66 @@ mod tests {
         assert_eq!(peak.load(Ordering::SeqCst), 9000);
         assert!(small_peak.load(Ordering::SeqCst) <= 2000);
         assert_eq!(bytes.load(Ordering::SeqCst), 0);
+    }
+
+    fn common(args: &[&str]) -> crate::cli::CommonArgs {
+        use clap::Parser;
+        let mut argv = vec!["tidemark", "extract"];
+        argv.extend_from_slice(args);
+        match crate::cli::Cli::try_parse_from(argv).unwrap().command {
+            crate::cli::Command::Extract(a) => a.common,
+            // Other commands are added beside `extract`.
+            #[allow(unreachable_patterns)]
+            _ => unreachable!("parsed as extract"),
+        }
+    }
+
+    #[test]
+    fn run_command_frames_documents_and_combines_exit_codes() {
+        let dir = tempfile::tempdir().unwrap();
+        let (a, b, dest) = (
+            dir.path().join("a.txt"),
+            dir.path().join("b.txt"),
+            dir.path().join("out"),
+        );
+        std::fs::write(&a, "HR 70").unwrap();
+        std::fs::write(&b, "BP 120/80").unwrap();
+        let s = |p: &std::path::Path| p.to_str().unwrap().to_string();
+        let render = |fail_on: &'static str| {
+            move |d: &Doc| Rendered {
+                bytes: format!("[{}]", d.text.as_deref().unwrap_or("-")).into_bytes(),
+                fails: d.source.ends_with(fail_on),
+            }
+        };
+        let plain = || Framing::Plain {
+            footer: b"end".to_vec(),
+        };
+
+        let c = common(&["-j", "2", "-o", &s(&dest), &s(&a), &s(&b)]);
+        assert_eq!(run_command(&c, plain(), render("none")), exit::OK);
+        assert_eq!(
+            std::fs::read_to_string(&dest).unwrap(),
+            "[HR 70][BP 120/80]end"
+        );
+
+        assert_eq!(run_command(&c, plain(), render("b.txt")), exit::FINDINGS);
+
+        let missing = dir.path().join("gone.txt");
+        let c = common(&["-o", &s(&dest), &s(&a), &s(&missing)]);
+        assert_eq!(run_command(&c, plain(), render("a.txt")), exit::SKIPPED);
+        assert_eq!(std::fs::read_to_string(&dest).unwrap(), "[HR 70][-]end");
+
+        let c = common(&["-o", &s(&dest), &s(&a)]);
+        assert_eq!(
+            run_command(&c, Framing::JsonRun("t/1"), |_| Rendered {
+                bytes: b"    {}".to_vec(),
+                fails: false,
+            }),
+            exit::OK
+        );
+        let v: serde_json::Value =
+            serde_json::from_str(&std::fs::read_to_string(&dest).unwrap()).unwrap();
+        assert_eq!(v, serde_json::json!({"schema": "t/1", "documents": [{}]}));
     }
 
     #[test]

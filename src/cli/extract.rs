@@ -1,73 +1,43 @@
 //! `tidemark extract`.
 
-use std::io::Write;
-
-use super::batch::for_each_document;
-use super::{exit, ExtractArgs, ExtractFormat};
+use super::batch::{run_command, Framing, Rendered};
+use super::{ExtractArgs, ExtractFormat};
 use crate::render;
 
 /// `tidemark extract`.
 pub fn run(args: &ExtractArgs) -> i32 {
     let config = args.common.config();
-    let mut out = match args.common.open_output() {
-        Ok(o) => o,
-        Err(e) => {
-            eprintln!("tidemark: {e}");
-            return exit::USAGE;
-        }
-    };
     let format = args.format;
-    let mut run = None;
-    let result = (|| {
-        if format == ExtractFormat::Json {
-            run = Some(render::json::RunWriter::start(
-                &mut out,
-                render::json::EXTRACT_SCHEMA,
-            )?);
-        }
-        // Each worker analyses and renders its document; the sink only writes, in order.
-        let report = for_each_document(
-            &args.common.paths,
-            &args.common.batch(),
-            |doc| {
-                let analysis = doc.text.as_deref().map(|t| crate::analyze(t, &config));
-                let mut buf = Vec::new();
-                match format {
-                    ExtractFormat::Json => {
-                        let v = render::json::extract_document(doc, analysis.as_ref());
-                        buf = render::json::pretty_document(&v);
-                    }
-                    ExtractFormat::Jsonl => {
-                        render::json::write_extract_line(&mut buf, doc, analysis.as_ref())
-                            .expect("writing to memory");
-                    }
-                    ExtractFormat::Text => {
-                        render::summary::write_document(&mut buf, doc, analysis.as_ref())
-                            .expect("writing to memory");
-                    }
-                }
-                buf
-            },
-            |_doc, rendered| match run.as_mut() {
-                Some(run) => run.document(&mut out, &rendered),
-                None => out.write_all(&rendered),
-            },
-        )?;
-        match run.take() {
-            Some(run) => run.end(&mut out)?,
-            None if format == ExtractFormat::Text => render::summary::write_footer(&mut out)?,
-            None => {}
-        }
-        out.flush()?;
-        Ok::<_, std::io::Error>(report)
-    })();
-    let report = match result.and_then(|r| out.finish().map(|_| r)) {
-        Ok(r) => r,
-        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => return exit::OK,
-        Err(e) => {
-            eprintln!("tidemark: cannot write output: {e}");
-            return exit::USAGE;
+    let framing = match format {
+        ExtractFormat::Json => Framing::JsonRun(render::json::EXTRACT_SCHEMA),
+        ExtractFormat::Jsonl => Framing::Plain { footer: Vec::new() },
+        ExtractFormat::Text => {
+            let mut footer = Vec::new();
+            render::summary::write_footer(&mut footer).expect("writing to memory");
+            Framing::Plain { footer }
         }
     };
-    report.exit_code()
+    // Each worker analyses and renders its document; the driver writes them in order.
+    run_command(&args.common, framing, |doc| {
+        let analysis = doc.text.as_deref().map(|t| crate::analyze(t, &config));
+        let mut bytes = Vec::new();
+        match format {
+            ExtractFormat::Json => {
+                let v = render::json::extract_document(doc, analysis.as_ref());
+                bytes = render::json::pretty_document(&v);
+            }
+            ExtractFormat::Jsonl => {
+                render::json::write_extract_line(&mut bytes, doc, analysis.as_ref())
+                    .expect("writing to memory");
+            }
+            ExtractFormat::Text => {
+                render::summary::write_document(&mut bytes, doc, analysis.as_ref())
+                    .expect("writing to memory");
+            }
+        }
+        Rendered {
+            bytes,
+            fails: false,
+        }
+    })
 }
