@@ -205,6 +205,9 @@ where
                 let rx = work_rx.clone();
                 let tx = done_tx.clone();
                 scope.spawn(move |_| {
+                    // A panic escaping here (per_doc failing even on a skipped document)
+                    // stops the batch instead of leaving the others waiting for ever.
+                    let _stop = StopOnDrop { cancelled, budget };
                     for (i, entry, size) in rx {
                         if cancelled.load(Ordering::Relaxed) {
                             break;
@@ -219,6 +222,8 @@ where
             }
             drop(work_rx);
             drop(done_tx);
+            // Likewise if the sink panics.
+            let _stop = StopOnDrop { cancelled, budget };
 
             let mut pending: BTreeMap<usize, (Doc, R, u64)> = BTreeMap::new();
             let mut next = 0usize;
@@ -337,6 +342,21 @@ where
     };
     let findings = if fails { exit::FINDINGS } else { exit::OK };
     exit::combine(report.exit_code(), findings)
+}
+
+/// Cancels the batch when dropped: at the end of a worker, of the writer, or on a panic.
+struct StopOnDrop<'a> {
+    cancelled: &'a AtomicBool,
+    budget: &'a Budget,
+}
+
+impl Drop for StopOnDrop<'_> {
+    fn drop(&mut self) {
+        if std::thread::panicking() {
+            self.cancelled.store(true, Ordering::Relaxed);
+            self.budget.wake();
+        }
+    }
 }
 
 /// Documents and bytes in flight, bounded; the walker waits for room.
@@ -641,6 +661,37 @@ mod tests {
         let v: serde_json::Value =
             serde_json::from_str(&std::fs::read_to_string(&dest).unwrap()).unwrap();
         assert_eq!(v, serde_json::json!({"schema": "t/1", "documents": [{}]}));
+    }
+
+    #[test]
+    fn a_panic_that_escapes_is_propagated_without_a_deadlock() {
+        // per_doc panics on every document, skipped ones included; the writer panics too.
+        for jobs in [1, 3] {
+            let r = std::panic::catch_unwind(|| {
+                for_each_entry(
+                    entries(200).into_iter(),
+                    &BatchOptions {
+                        window: 2,
+                        ..quiet(jobs)
+                    },
+                    |d| -> () { panic!("always: {}", d.source) },
+                    |_, ()| Ok(()),
+                )
+            });
+            assert!(r.is_err(), "jobs={jobs}");
+            let r = std::panic::catch_unwind(|| {
+                for_each_entry(
+                    entries(200).into_iter(),
+                    &BatchOptions {
+                        window: 2,
+                        ..quiet(jobs)
+                    },
+                    |_| (),
+                    |_, ()| -> io::Result<()> { panic!("writer") },
+                )
+            });
+            assert!(r.is_err(), "jobs={jobs}");
+        }
     }
 
     #[test]
