@@ -255,7 +255,7 @@ fn fhir_output_reports_a_skipped_document() {
         .arg(&empty)
         .output()
         .unwrap();
-    assert_eq!(out.status.code(), Some(1));
+    assert_eq!(out.status.code(), Some(3));
     let v: Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(v["resourceType"], "Bundle");
     assert_eq!(v["type"], "collection");

@@ -4,6 +4,7 @@ use std::io::Write;
 
 use serde_json::{json, Value};
 
+use super::batch::{run_command, Framing, Rendered};
 use super::{inputs, stream, ExtractArgs, ExtractFormat, InputFormat};
 use crate::config::Config;
 use crate::render;
@@ -14,9 +15,46 @@ pub fn run(args: &ExtractArgs) -> i32 {
     if args.input == InputFormat::Jsonl {
         return run_stream(args, &config);
     }
+    let format = args.format;
+    let framing = match format {
+        ExtractFormat::Fhir => return run_fhir(args, &config),
+        ExtractFormat::Json => Framing::JsonRun(render::json::EXTRACT_SCHEMA),
+        ExtractFormat::Jsonl => Framing::Plain { footer: Vec::new() },
+        ExtractFormat::Text => {
+            let mut footer = Vec::new();
+            render::summary::write_footer(&mut footer).expect("writing to memory");
+            Framing::Plain { footer }
+        }
+    };
+    // Each worker analyses and renders its document; the driver writes them in order.
+    run_command(&args.common, framing, |doc| {
+        let analysis = doc.text.as_deref().map(|t| crate::analyze(t, &config));
+        let mut bytes = Vec::new();
+        match format {
+            ExtractFormat::Json => {
+                let v = render::json::extract_document(doc, analysis.as_ref());
+                bytes = render::json::pretty_document(&v);
+            }
+            ExtractFormat::Jsonl => {
+                render::json::write_extract_line(&mut bytes, doc, analysis.as_ref())
+                    .expect("writing to memory");
+            }
+            ExtractFormat::Text => {
+                render::summary::write_document(&mut bytes, doc, analysis.as_ref())
+                    .expect("writing to memory");
+            }
+            ExtractFormat::Fhir => {}
+        }
+        Rendered {
+            bytes,
+            fails: false,
+        }
+    })
+}
+
+/// `--format fhir`: one Bundle for the whole run, so every document is held until the end.
+fn run_fhir(args: &ExtractArgs, config: &Config) -> i32 {
     let docs = inputs::load_all(&args.common.paths);
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
     let mut skipped = false;
     let mut analysed = Vec::with_capacity(docs.len());
     for doc in docs {
@@ -24,17 +62,12 @@ pub fn run(args: &ExtractArgs) -> i32 {
             eprintln!("tidemark: {}: {}", doc.source, w.message);
         }
         skipped |= doc.text.is_none();
-        let analysis = doc.text.as_deref().map(|t| crate::analyze(t, &config));
+        let analysis = doc.text.as_deref().map(|t| crate::analyze(t, config));
         analysed.push((doc, analysis));
     }
-    let result = match args.format {
-        ExtractFormat::Json => render::json::write_extract_run(&mut out, &analysed),
-        ExtractFormat::Jsonl => analysed
-            .iter()
-            .try_for_each(|(d, a)| render::json::write_extract_line(&mut out, d, a.as_ref())),
-        ExtractFormat::Text => render::summary::write(&mut out, &analysed),
-        ExtractFormat::Fhir => render::fhir::write_bundle(&mut out, &analysed),
-    };
+    let stdout = std::io::stdout();
+    let mut out = stdout.lock();
+    let result = render::fhir::write_bundle(&mut out, &analysed);
     if let Err(e) = result.and_then(|_| out.flush()) {
         if e.kind() != std::io::ErrorKind::BrokenPipe {
             eprintln!("tidemark: cannot write output: {e}");
@@ -42,7 +75,7 @@ pub fn run(args: &ExtractArgs) -> i32 {
         }
     }
     if skipped {
-        1
+        super::exit::SKIPPED
     } else {
         0
     }

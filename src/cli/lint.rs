@@ -14,6 +14,7 @@
 use std::io::{IsTerminal, Write};
 use std::path::PathBuf;
 
+use super::batch::{run_command, Framing, Rendered};
 use super::{
     inputs, ColorArg, ExplainArgs, FailOnArg, LintArgs, LintFormat, RulesArgs, RulesFormat,
 };
@@ -134,6 +135,29 @@ pub fn run(args: &LintArgs) -> i32 {
     if args.input == super::InputFormat::Jsonl {
         return run_stream(args, &config);
     }
+    // The machine formats stream through the parallel batch driver, in input order.
+    if matches!(args.format, LintFormat::Json | LintFormat::Jsonl) {
+        let framing = match args.format {
+            LintFormat::Json => Framing::JsonRun(render::json::LINT_SCHEMA),
+            _ => Framing::Plain { footer: Vec::new() },
+        };
+        let format = args.format;
+        return run_command(&args.common, framing, |doc| {
+            let analysis = doc.text.as_deref().map(|t| crate::analyze(t, &config));
+            let fails = analysis
+                .as_ref()
+                .is_some_and(|a| a.diagnostics.iter().any(|d| threshold.fails(d.severity)));
+            let mut bytes = Vec::new();
+            if format == LintFormat::Json {
+                let v = render::json::lint_document(doc, analysis.as_ref());
+                bytes = render::json::pretty_document(&v);
+            } else {
+                render::json::write_lint_line(&mut bytes, doc, analysis.as_ref())
+                    .expect("writing to memory");
+            }
+            Rendered { bytes, fails }
+        });
+    }
     let docs = inputs::load_all(&args.common.paths);
     let mut analysed = Vec::with_capacity(docs.len());
     let mut skipped = false;
@@ -177,14 +201,14 @@ pub fn run(args: &LintArgs) -> i32 {
 }
 
 /// 1 when a diagnostic reached the threshold, else 3 when an input was skipped, else 0.
+/// The exit code of a lint run, by the shared priority of [`super::exit`]: an incomplete run
+/// (3) says so even when it also found diagnostics (1).
 pub fn exit_code(failed: bool, skipped: bool) -> i32 {
-    if failed {
-        1
-    } else if skipped {
-        3
-    } else {
-        0
-    }
+    use super::exit;
+    exit::combine(
+        if failed { exit::FINDINGS } else { exit::OK },
+        if skipped { exit::SKIPPED } else { exit::OK },
+    )
 }
 
 /// `tidemark rules`.
@@ -265,7 +289,7 @@ mod tests {
     fn exit_codes() {
         assert_eq!(exit_code(false, false), 0);
         assert_eq!(exit_code(true, false), 1);
-        assert_eq!(exit_code(true, true), 1);
+        assert_eq!(exit_code(true, true), 3);
         assert_eq!(exit_code(false, true), 3);
     }
 }

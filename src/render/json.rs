@@ -58,13 +58,61 @@ pub fn write_extract_run<W: Write>(
     out: &mut W,
     docs: &[(Doc, Option<Analysis>)],
 ) -> io::Result<()> {
-    let documents: Vec<Value> = docs
-        .iter()
-        .map(|(d, a)| extract_document(d, a.as_ref()))
-        .collect();
-    let run = json!({"schema": EXTRACT_SCHEMA, "documents": documents});
-    serde_json::to_writer_pretty(&mut *out, &run)?;
-    out.write_all(b"\n")
+    let mut run = RunWriter::start(out, EXTRACT_SCHEMA)?;
+    for (d, a) in docs {
+        run.document(out, &pretty_document(&extract_document(d, a.as_ref())))?;
+    }
+    run.end(out)
+}
+
+/// Streams a run object `{"schema": ..., "documents": [...]}` one document at a time, so a
+/// batch of any size is written without holding its documents in memory. The bytes are
+/// exactly those of `serde_json::to_writer_pretty` on the whole object, plus a newline.
+#[derive(Debug)]
+pub struct RunWriter {
+    documents: usize,
+}
+
+impl RunWriter {
+    /// Write the opening of the run object.
+    pub fn start<W: Write>(out: &mut W, schema: &str) -> io::Result<RunWriter> {
+        let schema = serde_json::to_string(schema)?;
+        write!(out, "{{\n  \"schema\": {schema},\n  \"documents\": [")?;
+        Ok(RunWriter { documents: 0 })
+    }
+
+    /// Write one document rendered by [`pretty_document`].
+    pub fn document<W: Write>(&mut self, out: &mut W, rendered: &[u8]) -> io::Result<()> {
+        out.write_all(if self.documents == 0 { b"\n" } else { b",\n" })?;
+        out.write_all(rendered)?;
+        self.documents += 1;
+        Ok(())
+    }
+
+    /// Close the run object.
+    pub fn end<W: Write>(self, out: &mut W) -> io::Result<()> {
+        if self.documents == 0 {
+            out.write_all(b"]\n}\n")
+        } else {
+            out.write_all(b"\n  ]\n}\n")
+        }
+    }
+}
+
+/// One document pretty-printed at the depth it has inside a run object (for
+/// [`RunWriter::document`]); cheap to call on worker threads.
+pub fn pretty_document(value: &Value) -> Vec<u8> {
+    let body = serde_json::to_vec_pretty(value).unwrap_or_else(|_| b"null".to_vec());
+    let mut out = Vec::with_capacity(body.len() + body.len() / 8 + 8);
+    // JSON strings never contain a raw newline, so every line break is structural.
+    for (i, line) in body.split(|&b| b == b'\n').enumerate() {
+        if i > 0 {
+            out.push(b'\n');
+        }
+        out.extend_from_slice(b"    ");
+        out.extend_from_slice(line);
+    }
+    out
 }
 
 /// Write one document as one line.
@@ -125,4 +173,39 @@ pub fn write_lint_line<W: Write>(out: &mut W, doc: &Doc, a: Option<&Analysis>) -
         .insert("schema".into(), json!(LINT_SCHEMA));
     serde_json::to_writer(&mut *out, &v)?;
     out.write_all(b"\n")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn run_bytes(values: &[Value]) -> Vec<u8> {
+        let mut out = Vec::new();
+        let mut run = RunWriter::start(&mut out, "x/1").unwrap();
+        for v in values {
+            let r = pretty_document(v);
+            run.document(&mut out, &r).unwrap();
+        }
+        run.end(&mut out).unwrap();
+        out
+    }
+
+    // Reference: serde_json's own pretty printer on the whole object.
+    fn reference(values: &[Value]) -> Vec<u8> {
+        let mut v =
+            serde_json::to_vec_pretty(&json!({"schema": "x/1", "documents": values})).unwrap();
+        v.push(b'\n');
+        v
+    }
+
+    #[test]
+    fn streamed_run_matches_serde_pretty_output() {
+        let docs = vec![
+            json!({"source": "a\nb.txt", "warnings": [], "nested": {"k": [1, 2, {"z": null}]}}),
+            json!({"source": "c", "empty": {}, "list": []}),
+        ];
+        assert_eq!(run_bytes(&docs), reference(&docs));
+        assert_eq!(run_bytes(&docs[..1]), reference(&docs[..1]));
+        assert_eq!(run_bytes(&[]), reference(&[]));
+    }
 }

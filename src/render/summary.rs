@@ -14,22 +14,36 @@ use crate::Analysis;
 
 pub fn write<W: Write>(out: &mut W, docs: &[(Doc, Option<Analysis>)]) -> io::Result<()> {
     for (doc, analysis) in docs {
-        writeln!(out, "== {}", doc.source)?;
-        for w in &doc.warnings {
-            writeln!(out, "   warning: {}", w.message)?;
-        }
-        let Some(a) = analysis else { continue };
-        let ex = &a.extraction;
-        writeln!(
-            out,
-            "   items: {} measurements, {} findings, {} statements",
-            ex.measurements.len(),
-            ex.findings.len(),
-            ex.statements.len()
-        )?;
-        write_picture(out, &a.picture)?;
+        write_document(out, doc, analysis.as_ref())?;
     }
+    write_footer(out)
+}
+
+/// The closing lines of a summary run: the caution.
+pub fn write_footer<W: Write>(out: &mut W) -> io::Result<()> {
     writeln!(out, "\n{}", super::CAUTION)
+}
+
+/// One document's summary.
+pub fn write_document<W: Write>(
+    out: &mut W,
+    doc: &Doc,
+    analysis: Option<&Analysis>,
+) -> io::Result<()> {
+    writeln!(out, "== {}", doc.source)?;
+    for w in &doc.warnings {
+        writeln!(out, "   warning: {}", w.message)?;
+    }
+    let Some(a) = analysis else { return Ok(()) };
+    let ex = &a.extraction;
+    writeln!(
+        out,
+        "   items: {} measurements, {} findings, {} statements",
+        ex.measurements.len(),
+        ex.findings.len(),
+        ex.statements.len()
+    )?;
+    write_picture(out, &a.picture)
 }
 
 fn at(s: &Span) -> String {
