@@ -179,7 +179,10 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
             }
             Rule::aside => {
                 for item in c.into_inner() {
-                    if let Some(r) = item_reading(item, base) {
+                    if let Some(mut r) = item_reading(item, base) {
+                        // A bare bracketed value after a value is the one before it
+                        // (`Cr 152 (148)`): common practice, no source.
+                        r.time_ref = r.time_ref.or(Some(TimeRef::Previous));
                         out.push(r);
                     }
                 }
