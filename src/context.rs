@@ -305,8 +305,9 @@ impl<'a> ContextEngine<'a> {
                 Family::Possibility if target != Target::Measurement => {
                     let reach = if q_is {
                         // "?S3", "? fluid overload" forward; "LVF?" backward, adjacent only.
-                        // "?soft S3": one describing word may sit between.
-                        (before && words <= 1 && gap_b - gap_a <= 12) || (after && gap_b == gap_a)
+                        // "?soft S3", "?small bilateral effusions": describing words may sit
+                        // between.
+                        (before && words <= 2 && gap_b - gap_a <= 24) || (after && gap_b == gap_a)
                     } else if before {
                         words <= 5
                     } else {

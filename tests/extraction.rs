@@ -512,3 +512,33 @@ fn us_dates_read_month_first_when_the_note_says_so() {
     let e = ex("Seen 06/24/2026.\n07/01/2026 Review\nwt 180 lb\n07/02/2026 Review\nwt 178 lb\n");
     assert_eq!(e.episodes[0].date.as_deref(), Some("2026-07-01"));
 }
+
+#[test]
+fn shorthand_forms_from_real_practice() {
+    // Forms listed in the domain reference's note-language table (invented examples).
+    assert_eq!(values("BP98/60 HR112 SpO293%RA wt84.2kg", M::Spo2), [93.0]);
+    assert_eq!(values("Cr ↑ 132→149", M::Creatinine), [132.0, 149.0]);
+    // Decimal commas: 1,4 mg/dL × 88.4 = 123.76 µmol/L.
+    assert_eq!(values("Cr 1,4 mg/dl", M::Creatinine), [123.76]);
+    assert_eq!(values("37,8 °C", M::Temperature), [37.8]);
+    assert_eq!(values("BNP 1,250 pg/mL", M::Bnp), [1250.0]);
+    assert_eq!(values("AF with RVR 140s", M::HeartRate), [140.0]);
+    assert_eq!(values("SaO2 (ABG) 91%", M::Spo2), [91.0]);
+    assert_eq!(values("EF 0.35", M::Lvef), [35.0]);
+    // An empty template slot documents nothing.
+    assert_eq!(
+        assertion("Oedema: [ ]", FindingConcept::PeripheralEdema),
+        None
+    );
+    assert_eq!(
+        assertion("Chest: NAD", FindingConcept::Crackles),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion(
+            "?small bilateral effusions",
+            FindingConcept::PleuralEffusion
+        ),
+        Some(Assertion::Possible)
+    );
+}

@@ -264,7 +264,7 @@ fn temperatures(doc: &Doc, out: &mut Output) {
     static RE: OnceLock<Regex> = OnceLock::new();
     let r = re(
         &RE,
-        r"(?i)\b(\d{2,3}(?:\.\d{1,2})?)\s?(°\s?[CF]\b|º\s?[CF]\b|deg(?:rees?)?\s?[CF]\b|degrees (?:celsius|fahrenheit)|celsius|fahrenheit)",
+        r"(?i)\b(\d{2,3}(?:[.,]\d{1,2})?)\s?(°\s?[CF]\b|º\s?[CF]\b|deg(?:rees?)?\s?[CF]\b|degrees (?:celsius|fahrenheit)|celsius|fahrenheit)",
     );
     for c in r.captures_iter(doc.text) {
         let m = c.get(0).expect("match");

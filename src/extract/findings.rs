@@ -276,6 +276,15 @@ pub fn findings(doc: &Doc, out: &mut Output) {
             r.is_match(&doc.text[end..line_end.max(end)])
         };
         let present = present && !slot_negative;
+        // An empty template slot (`Oedema: [ ]`, `JVP: ___`) documents nothing.
+        {
+            static EMPTY: OnceLock<Regex> = OnceLock::new();
+            let r = re(&EMPTY, r"^\s*[:=]\s*(?:\[\s*\]|_{2,}|\.{3}|\?\s*$)");
+            let line_end = doc.line_at(end).end;
+            if r.is_match(&doc.text[end..line_end.max(end)]) {
+                continue;
+            }
+        }
         // A grade, level or count written beside the term (not a level the term itself
         // names, as in "ankle swelling").
         let term_lower = doc.text[start..end].to_ascii_lowercase();

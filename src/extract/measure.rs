@@ -384,6 +384,22 @@ pub fn push(
     if r.target {
         return;
     }
+    // `EF 0.35`: an ejection fraction written as a fraction (common practice, no source).
+    let scaled;
+    let r = if concept == MeasureConcept::Lvef
+        && r.unit_text.is_none()
+        && r.value > 0.0
+        && r.value < 1.0
+    {
+        scaled = Reading {
+            value: r.value * 100.0,
+            range: r.range.map(|(a, b)| (a * 100.0, b * 100.0)),
+            ..r.clone()
+        };
+        &scaled
+    } else {
+        r
+    };
     let written = r
         .unit_text
         .as_deref()

@@ -16,7 +16,15 @@ pub fn parse_number(s: &str) -> Option<f64> {
     if s.as_bytes()[0].is_ascii_alphabetic() {
         return word_number(s);
     }
-    let cleaned: String = s.chars().filter(|c| *c != ',').collect();
+    // `1,4` and `37,8` are decimal commas; `1,250` is a thousands separator.
+    let decimal_comma = s
+        .split_once(',')
+        .is_some_and(|(a, b)| !a.is_empty() && (1..=2).contains(&b.len()) && !b.contains(','));
+    let cleaned: String = if decimal_comma {
+        s.replace(',', ".")
+    } else {
+        s.chars().filter(|c| *c != ',').collect()
+    };
     let v: f64 = cleaned.parse().ok()?;
     v.is_finite().then_some(v)
 }
@@ -104,6 +112,8 @@ mod tests {
     fn numbers_as_notes_write_them() {
         assert_eq!(parse_number("1,250"), Some(1250.0));
         assert_eq!(parse_number(".5"), Some(0.5));
+        assert_eq!(parse_number("1,4"), Some(1.4));
+        assert_eq!(parse_number("37,8"), Some(37.8));
         assert_eq!(parse_number("82.4"), Some(82.4));
         assert_eq!(parse_number("thirty-five"), Some(35.0));
         assert_eq!(parse_number("forty five"), Some(45.0));
