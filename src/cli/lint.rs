@@ -92,7 +92,7 @@ trait EmptyOs {
 
 impl EmptyOs for Option<std::ffi::OsString> {
     fn is_none_or_empty(&self) -> bool {
-        self.as_ref().map_or(true, |v| v.is_empty())
+        self.as_ref().is_none_or(|v| v.is_empty())
     }
 }
 

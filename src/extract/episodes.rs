@@ -59,7 +59,7 @@ pub fn find(text: &str, index: &LineIndex, dates: &[FoundDate]) -> Vec<Episode> 
             && !is_meta
             && starts
                 .last()
-                .map_or(true, |s| index.line_of(s.0) != index.line_of(d.start))
+                .is_none_or(|s| index.line_of(s.0) != index.line_of(d.start))
         {
             let time = find_time(after).map(|(_, t)| t);
             starts.push((line.start, d.iso.clone(), time));
@@ -115,7 +115,7 @@ pub fn note_date(
         } else {
             0
         };
-        if rank > 0 && named.as_ref().map_or(true, |(r, _)| rank > *r) {
+        if rank > 0 && named.as_ref().is_none_or(|(r, _)| rank > *r) {
             named = Some((rank, d.iso.clone()));
         }
     }

@@ -1218,7 +1218,7 @@ fn capillary_refill(doc: &Doc, out: &mut Output, start: usize, end: usize) {
                     }
                 }
                 if let Some(v) = v {
-                    if worst.map_or(true, |(w, _)| v > w) {
+                    if worst.is_none_or(|(w, _)| v > w) {
                         worst = Some((v, q));
                     }
                 }

@@ -322,12 +322,12 @@ fn find_hits(text: &str) -> Vec<Hit> {
         if !text.is_char_boundary(s) || !text.is_char_boundary(e) {
             continue;
         }
-        let before_ok = text[..s].chars().next_back().map_or(true, |p| !is_word(p));
+        let before_ok = text[..s].chars().next_back().is_none_or(|p| !is_word(p));
         // A dose may follow the name without a space ("frusemide40").
         let after_ok = text[e..]
             .chars()
             .next()
-            .map_or(true, |n| !is_word(n) || n.is_ascii_digit());
+            .is_none_or(|n| !is_word(n) || n.is_ascii_digit());
         if before_ok && after_ok {
             out.push(Hit {
                 start: s,
@@ -344,7 +344,7 @@ fn is_full_stop(text: &str, i: usize) -> bool {
     let b = text.as_bytes();
     let next_ok = b
         .get(i + 1)
-        .map_or(true, |n| matches!(n, b' ' | b'\t' | b'\n' | b'\r'));
+        .is_none_or(|n| matches!(n, b' ' | b'\t' | b'\n' | b'\r'));
     if !next_ok {
         return false;
     }
@@ -416,7 +416,7 @@ fn last_separator(between: &str) -> Option<(usize, usize, Join)> {
     let lower = between.to_ascii_lowercase();
     let mut best: Option<(usize, usize, Join)> = None;
     let mut consider = |s: usize, e: usize, kind: Join| {
-        if best.map_or(true, |b| s >= b.0) {
+        if best.is_none_or(|b| s >= b.0) {
             best = Some((s, e, kind));
         }
     };
