@@ -193,9 +193,9 @@ fn exports(m: &Measurement) -> bool {
     m.assertion == Assertion::Present
         && m.experiencer == Experiencer::Patient
         && m.value.is_finite()
-        && m.normalized.map_or(true, |q| q.value.is_finite())
+        && m.normalized.is_none_or(|q| q.value.is_finite())
         && m.range
-            .map_or(true, |(lo, hi)| lo.is_finite() && hi.is_finite())
+            .is_none_or(|(lo, hi)| lo.is_finite() && hi.is_finite())
 }
 
 /// Systolic/diastolic pairs written together: a diastolic value starting within a few bytes

@@ -75,7 +75,7 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
                 continue;
             }
             let rise = w1 - w0;
-            if rise > limit + 1e-9 && best.map_or(true, |(r, ..)| rise > r) {
+            if rise > limit + 1e-9 && best.is_none_or(|(r, ..)| rise > r) {
                 best = Some((rise, *m0, *m1, days));
             }
         }
