@@ -45,7 +45,7 @@ const CONDITION_CLINICAL: &str = "http://terminology.hl7.org/CodeSystem/conditio
 const CONDITION_VERIFICATION: &str = "http://terminology.hl7.org/CodeSystem/condition-ver-status";
 
 /// Blood pressure panel, systolic and diastolic (FHIR R4 4.0.1 vital-signs profile, value set
-/// observation-vitalsignresult; also /work/shared/domain/05-vitals-labs-units.md §5.1).
+/// observation-vitalsignresult; also the domain reference on vitals, labs and units, §5.1).
 pub const BP_PANEL: (&str, &str) = ("85354-9", "Blood pressure panel with all children optional");
 pub const BP_SYSTOLIC: (&str, &str) = ("8480-6", "Systolic blood pressure");
 pub const BP_DIASTOLIC: (&str, &str) = ("8462-4", "Diastolic blood pressure");
@@ -54,7 +54,7 @@ pub const BP_DIASTOLIC: (&str, &str) = ("8462-4", "Diastolic blood pressure");
 ///
 /// Vital signs: the FHIR R4 (4.0.1) vital-signs profile's value set
 /// observation-vitalsignresult (hl7.org/fhir/R4/valueset-observation-vitalsignresult.html),
-/// as also listed in /work/shared/domain/05-vitals-labs-units.md §5.1. Labs: the same
+/// as also listed in the domain reference on vitals, labs and units, §5.1. Labs: the same
 /// domain file §5.2; creatinine (substance), sodium, potassium and haemoglobin are marked
 /// verified there, urea, BNP, NT-proBNP and LVEF are marked "from memory" there and not
 /// verified further. JVP, fluid balance, urine output and lactate carry no LOINC code (the
