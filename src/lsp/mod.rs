@@ -10,8 +10,8 @@
 //!
 //! Configuration: the client's `initializationOptions` (the same keys as `check`'s `config`,
 //! plus `rulesDocUrl`), and later `workspace/didChangeConfiguration` settings. Layering is
-//! defaults, then the project file, then the client; the project file (`tidemark.toml`) is
-//! read at the marked place once the lint configuration that defines it exists.
+//! defaults, then the project file (the nearest `tidemark.toml` at or above the workspace
+//! root), then the client.
 //!
 //! Architecture invariant: nothing here writes to stdout except the protocol; logs go to
 //! stderr. The server never sends a note anywhere but back to its own client.
@@ -159,8 +159,15 @@ impl Server {
     pub fn from_init(init: &InitializeParams) -> Server {
         let mut server = Server::default();
         let root = workspace_root(init);
-        // Layer 1, the project file: tidemark.toml under `root` is applied here once the lint
-        // configuration that defines its format lands.
+        // Layer 1, the project file: the nearest tidemark.toml at or above the workspace root.
+        if let Some(path) = root.as_deref().and_then(crate::config::find_config_file) {
+            match Config::load(&path) {
+                Ok(c) => server.config = c,
+                Err(e) => server
+                    .pending_logs
+                    .push(format!("{} ignored: {e}", path.display())),
+            }
+        }
         // Layer 2, the client's initializationOptions.
         let mut options = init.initialization_options.clone().unwrap_or(Value::Null);
         let mut rules_doc = None;
@@ -445,6 +452,28 @@ mod tests {
         );
         assert_eq!(s.pending_logs.len(), 1);
         assert!(s.pending_logs[0].contains("colour"));
+    }
+
+    #[test]
+    fn the_workspace_tidemark_toml_is_layered_under_the_client_options() {
+        let dir = std::env::temp_dir().join(format!("tidemark-lsp-cfg-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        std::fs::write(
+            dir.join("tidemark.toml"),
+            "[locale]\ndate-order = \"mdy\"\n[lint.rules]\nunit-missing = \"off\"\n",
+        )
+        .unwrap();
+        #[allow(deprecated)]
+        let init = InitializeParams {
+            root_uri: uri(&file_uri(&dir)),
+            initialization_options: Some(json!({"date_order": "dmy"})),
+            ..InitializeParams::default()
+        };
+        let s = Server::from_init(&init);
+        // The project file switched the rule off; the client's option overrode the date order.
+        assert!(!s.config.lint.rule("unit-missing").enabled);
+        assert_eq!(s.config.extract.date_order, crate::config::DateOrder::Dmy);
+        std::fs::remove_dir_all(&dir).unwrap();
     }
 
     #[test]
