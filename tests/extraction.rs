@@ -480,6 +480,9 @@ fn age_and_sex() {
         ("82-year-old woman with HFpEF", "82", "female"),
         ("Patient: K.L., F, 67", "67", "female"),
         ("Mrs K.L., 64 years", "64", "female"),
+        // A title and name, then the age after a comma (common practice, no source).
+        ("Ward round. Mr A.B., 74. Known HFrEF.", "74", "male"),
+        ("Ms Example, 58, reviewed on the ward", "58", "female"),
     ] {
         let e = ex(text);
         let get = |k| {
@@ -490,6 +493,21 @@ fn age_and_sex() {
         };
         assert_eq!(get(StatementKind::Age).as_deref(), Some(age), "{text}");
         assert_eq!(get(StatementKind::Sex).as_deref(), Some(sex), "{text}");
+    }
+}
+
+#[test]
+fn a_number_after_a_name_that_is_not_an_age_is_not_read_as_one() {
+    // `Mr A.B., 74 kg`: a weight; `Mrs C.D., 2F`: no age either.
+    for text in [
+        "Mr A.B., 74 kg on the ward scales",
+        "Mrs C.D., 12345 hospital no.",
+    ] {
+        let e = ex(text);
+        assert!(
+            !e.statements.iter().any(|s| s.kind == StatementKind::Age),
+            "{text}"
+        );
     }
 }
 

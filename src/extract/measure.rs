@@ -179,7 +179,25 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
             }
             Rule::aside => {
                 for item in c.into_inner() {
-                    if let Some(r) = item_reading(item, base) {
+                    let bare = is_bare_item(&item);
+                    if let Some(mut r) = item_reading(item, base) {
+                        // `Cr 152↑ (148)`: a bare number of the same size in brackets after
+                        // a value is the earlier value it is compared with (common practice,
+                        // no source). A number of another size is the value in another unit.
+                        if bare && r.time_ref.is_none() {
+                            if let Some(main) = out.first() {
+                                let same_unit =
+                                    r.unit_text.is_none() || r.unit_text == main.unit_text;
+                                let ratio = if main.value != 0.0 {
+                                    r.value / main.value
+                                } else {
+                                    0.0
+                                };
+                                if same_unit && (0.5..=2.0).contains(&ratio) {
+                                    r.time_ref = Some(TimeRef::Previous);
+                                }
+                            }
+                        }
                         out.push(r);
                     }
                 }
@@ -201,6 +219,14 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
         }
     }
     out
+}
+
+/// An aside item that is a number alone, with at most a unit: no words around it.
+fn is_bare_item(p: &Pair<Rule>) -> bool {
+    p.as_rule() == Rule::aside_item
+        && p.clone()
+            .into_inner()
+            .all(|c| matches!(c.as_rule(), Rule::reading | Rule::unit))
 }
 
 /// An aside item or a chain link: `[target] [when] reading [unit] [when]`.
@@ -369,6 +395,19 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
     WORDS.iter().any(|w| before.contains(w))
 }
 
+/// `Bloods on admission: ... creatinine 118`: a value the historical cue places at this
+/// stay's admission is an admission value of the series, not one from an earlier stay
+/// (`previous admission`, `before admission` are not).
+fn admission_cue(ctx: &crate::model::Context) -> Option<TimeRef> {
+    let cue = ctx.cues.iter().find(|c| c.family == "historical")?;
+    let t = cue.text.to_ascii_lowercase();
+    let earlier = ["prev", "last", "prior", "before", "pre-", "pre "]
+        .iter()
+        .any(|w| t.contains(w));
+    (!earlier && t.contains("adm") && time_ref(&t) == Some(TimeRef::Admission))
+        .then_some(TimeRef::Admission)
+}
+
 /// Build a measurement from a reading and push it, with its context, unit and date.
 pub fn push(
     doc: &Doc,
@@ -414,7 +453,7 @@ pub fn push(
         assertion: ctx.assertion,
         temporality: ctx.temporality,
         experiencer: ctx.experiencer,
-        time_ref: r.time_ref,
+        time_ref: r.time_ref.or_else(|| admission_cue(&ctx)),
         range: r.range,
         qualifier: r.qualifier,
         unit_text: if unit_inferred {
