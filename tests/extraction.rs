@@ -530,3 +530,53 @@ fn us_dates_read_month_first_when_the_note_says_so() {
     let e = ex("Seen 06/24/2026.\n07/01/2026 Review\nwt 180 lb\n07/02/2026 Review\nwt 178 lb\n");
     assert_eq!(e.episodes[0].date.as_deref(), Some("2026-07-01"));
 }
+
+// Shorthand readings of the ward notes, common practice, no source: a time word between the
+// label and the value places it; clock hours after the label are the period, not the value;
+// the intake and output in brackets behind a balance are not balances; a bracketed number
+// of the same size after a lab value is the earlier value; admission bloods are admission
+// values of this stay.
+#[test]
+fn balance_shorthand_reads_the_balance_and_its_day() {
+    let e = ex("FB yesterday -1.3 L. UO ~90 ml/h.");
+    let fb: Vec<_> = e
+        .measurements
+        .iter()
+        .filter(|m| m.concept == M::FluidBalance)
+        .collect();
+    assert_eq!(fb.len(), 1);
+    assert_eq!(fb[0].time_ref, Some(tidemark::model::TimeRef::Yesterday));
+    assert_eq!(
+        values(
+            "Fluid balance 08:00-16:00: +650 ml (oral 1.1 L, urine 450 ml).",
+            M::FluidBalance
+        ),
+        [650.0]
+    );
+}
+
+#[test]
+fn bracketed_and_admission_values_are_earlier_values() {
+    use tidemark::model::TimeRef;
+    let e = ex("Cr 152↑ (148) K 5.1");
+    let cr: Vec<_> = e
+        .measurements
+        .iter()
+        .filter(|m| m.concept == M::Creatinine)
+        .map(|m| (m.value, m.time_ref))
+        .collect();
+    assert_eq!(cr, [(152.0, None), (148.0, Some(TimeRef::Previous))]);
+    // Another size is the same value in another unit, not an earlier one.
+    let e = ex("Wt 80 kg (176 lb)");
+    assert!(e
+        .measurements
+        .iter()
+        .all(|m| m.time_ref != Some(TimeRef::Previous)));
+    let e = ex("Bloods on admission: creatinine 118 umol/L.\nBloods today: creatinine 134 umol/L.");
+    let adm = e
+        .measurements
+        .iter()
+        .find(|m| m.concept == M::Creatinine && m.value == 118.0)
+        .expect("admission creatinine");
+    assert_eq!(adm.time_ref, Some(TimeRef::Admission));
+}

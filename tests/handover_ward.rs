@@ -59,7 +59,7 @@ fn close(v: &serde_json::Value, expected: f64) -> bool {
 }
 
 #[test]
-#[ignore = "needs extraction"]
+#[ignore = "bed 7: `Target ~69 kg` inside the weights line is not read as a target weight, and `today 67.6 kg` in a dated weight series takes the previous item's date (15/03)"]
 fn ward_day_values() {
     let v: serde_json::Value = serde_json::from_str(&run("json")).expect("json");
     assert_eq!(v["patients"].as_array().map(Vec::len), Some(4));
@@ -130,7 +130,7 @@ fn ward_day_values() {
 }
 
 #[test]
-#[ignore = "needs extraction"]
+#[ignore = "recorded only once ward_day_values passes: the sheet still misses bed 7's target weight and misdates today's weight in a dated series"]
 fn ward_day_snapshots() {
     insta::assert_snapshot!("ward_day_text", run("text"));
     insta::assert_snapshot!("ward_day_markdown", run("markdown"));

@@ -151,10 +151,21 @@ pub fn reading_of(p: Pair<Rule>, base: usize) -> Option<Reading> {
 /// time word, then any asides (`(yesterday 83.1)`) and chains (`-> 131`).
 pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
     let mut out: Vec<Reading> = Vec::new();
+    // `FB yesterday -1.3 L`: a time word between the label and the value places the value.
+    let mut leading: Option<TimeRef> = None;
     for c in p.into_inner() {
         match c.as_rule() {
+            Rule::when if out.is_empty() && !c.as_str().eq_ignore_ascii_case("was") => {
+                leading = time_ref(c.as_str()).or(leading)
+            }
+            Rule::period
+                if out.is_empty() && c.as_str().trim().eq_ignore_ascii_case("yesterday") =>
+            {
+                leading = Some(TimeRef::Yesterday);
+            }
             Rule::reading | Rule::range_reading if out.is_empty() => {
-                if let Some(r) = reading_of(c, base) {
+                if let Some(mut r) = reading_of(c, base) {
+                    r.time_ref = leading;
                     out.push(r);
                 }
             }
@@ -174,16 +185,17 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
             }
             Rule::trailing_when => {
                 if let Some(r) = out.first_mut() {
-                    r.time_ref = time_ref(c.as_str());
+                    r.time_ref = time_ref(c.as_str()).or(r.time_ref);
                 }
             }
             Rule::aside => {
                 for item in c.into_inner() {
                     let bare = is_bare_item(&item);
                     if let Some(mut r) = item_reading(item, base) {
-                        // `Cr 152↑ (148)`: a bare number of the same size in brackets after
-                        // a value is the earlier value it is compared with (common practice,
-                        // no source). A number of another size is the value in another unit.
+                        // `Cr 152↑ (148)`, `K 3.6 (AM 4.1)`: a number of the same size in
+                        // brackets after a value is the earlier value it is compared with
+                        // (common practice, no source). One of another size is the value in
+                        // another unit.
                         if bare && r.time_ref.is_none() {
                             if let Some(main) = out.first() {
                                 let same_unit =
@@ -221,12 +233,18 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
     out
 }
 
-/// An aside item that is a number alone, with at most a unit: no words around it.
+/// An aside item that compares with an earlier value: a number alone (`(148)`) or with a
+/// word that is not a later one (`(AM 4.1)`, `(Mon 131)`; not `(repeat 5.2)`, `(post 3.9)`).
 fn is_bare_item(p: &Pair<Rule>) -> bool {
+    const LATER: &[&str] = &[
+        "repeat", "rpt", "re-check", "recheck", "later", "post", "after", "pm",
+    ];
     p.as_rule() == Rule::aside_item
-        && p.clone()
-            .into_inner()
-            .all(|c| matches!(c.as_rule(), Rule::reading | Rule::unit))
+        && p.clone().into_inner().all(|c| match c.as_rule() {
+            Rule::reading | Rule::unit => true,
+            Rule::aside_word => !LATER.contains(&c.as_str().to_ascii_lowercase().as_str()),
+            _ => false,
+        })
 }
 
 /// An aside item or a chain link: `[target] [when] reading [unit] [when]`.
@@ -1124,8 +1142,21 @@ fn fluid_balance(doc: &Doc, out: &mut Output, start: usize, end: usize) {
     let Some(mut m) = main else { return };
     m.value *= sign;
     push(doc, out, MeasureConcept::FluidBalance, &m, start, false);
+    // `+650 ml (oral 1.1 L, urine 450 ml)`: the intake and output behind a balance are not
+    // balances themselves.
+    const PARTS: &[&str] = &[
+        "in", "out", "input", "intake", "output", "oral", "po", "iv", "urine", "uo", "drain",
+        "drains", "stool", "vomit",
+    ];
     for r in rest {
-        push(doc, out, MeasureConcept::FluidBalance, &r, r.start, false);
+        let before = doc.text.get(..r.start).unwrap_or("");
+        let item = before.rsplit(['(', ',', ';']).next().unwrap_or("");
+        let part = item
+            .split(|c: char| !c.is_ascii_alphabetic())
+            .any(|w| PARTS.contains(&w.to_ascii_lowercase().as_str()));
+        if !part {
+            push(doc, out, MeasureConcept::FluidBalance, &r, r.start, false);
+        }
     }
 }
 
