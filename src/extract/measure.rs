@@ -579,7 +579,8 @@ fn read_label(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
         Label::Weight | Label::WeightAdm | Label::WeightDis | Label::WeightSeries => {
             weight(doc, out, label, start, end)
         }
-        Label::TargetWeight => target_weight(doc, out, start, end),
+        Label::TargetWeight => target_weight(doc, out, start, end, false),
+        Label::TargetWeak => target_weight(doc, out, start, end, true),
         Label::Height => height(doc, out, start, end),
         Label::Jvp | Label::Jvd => jvp(doc, out, label, start, end),
         Label::Io => intake_output(doc, out, start, end),
@@ -712,12 +713,16 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
             }
             let mut r: Option<Reading> = None;
             let mut date = None;
+            let mut when = None;
             for part in item.into_inner() {
                 match part.as_rule() {
                     Rule::day_token => {
                         let abs = end + part.as_span().start();
                         date = doc.date_at(abs).map(|d| d.iso.clone());
                     }
+                    // `15/03 68.4 kg, today 67.6 kg`: the time word dates this item, not
+                    // the date of the item before it on the line.
+                    Rule::when => when = time_ref(part.as_str()),
                     Rule::reading => r = reading_of(part, end),
                     Rule::unit => {
                         if let Some(r) = r.as_mut() {
@@ -730,6 +735,7 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
             }
             if let Some(mut r) = r {
                 r.date = date;
+                r.time_ref = when;
                 items.push(r);
             }
         }
@@ -742,6 +748,16 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
                 }
                 let s = if i == 0 { start } else { r.start };
                 push(doc, out, MeasureConcept::Weight, r, s, false);
+                if r.time_ref.is_some() && r.date.is_none() {
+                    if let Some(m) = out.measurements.last_mut() {
+                        if m.concept == MeasureConcept::Weight && m.span.start >= s {
+                            m.date = doc
+                                .episode_of(s)
+                                .and_then(|i| doc.episodes[i].date.clone())
+                                .filter(|_| r.time_ref == Some(TimeRef::Today));
+                        }
+                    }
+                }
             }
             return;
         }
@@ -797,7 +813,9 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
     }
 }
 
-fn target_weight(doc: &Doc, out: &mut Output, start: usize, end: usize) {
+/// A target weight; `unit_needed` for a bare `target` or `goal`, which is a weight only
+/// with a weight unit written after the number (`Target ~69 kg`, not `target K > 4`).
+fn target_weight(doc: &Doc, out: &mut Output, start: usize, end: usize, unit_needed: bool) {
     let Some(p) = parse_at(doc, Rule::target_value, end) else {
         return;
     };
@@ -811,6 +829,13 @@ fn target_weight(doc: &Doc, out: &mut Output, start: usize, end: usize) {
         }
     }
     let Some(mut r) = r else { return };
+    if unit_needed
+        && !unit.as_ref().is_some_and(|(u, _)| {
+            units::ucum(u).is_some_and(|c| units::accepts(MeasureConcept::Weight, c))
+        })
+    {
+        return;
+    }
     if let Some((u, e)) = unit {
         r.unit_text = Some(u);
         r.end = e;
