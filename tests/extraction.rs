@@ -580,3 +580,29 @@ fn bracketed_and_admission_values_are_earlier_values() {
         .expect("admission creatinine");
     assert_eq!(adm.time_ref, Some(TimeRef::Admission));
 }
+
+// Common practice, no source: `today` in a dated weight series is not the day before it, and
+// a bare `target` is a target weight only with a weight unit.
+#[test]
+fn series_time_words_and_bare_targets() {
+    use tidemark::model::{StatementKind, TimeRef};
+    let e = ex("Weights: 13/03 70.1 kg, 15/03 68.4 kg, today 67.6 kg. Target ~69 kg.");
+    let today = e
+        .measurements
+        .iter()
+        .find(|m| m.concept == M::Weight && m.value == 67.6)
+        .expect("today's weight");
+    assert_eq!(today.time_ref, Some(TimeRef::Today));
+    assert_ne!(today.date.as_deref(), Some("2026-03-15"));
+    let target = e
+        .statements
+        .iter()
+        .find(|s| s.kind == StatementKind::TargetWeight)
+        .expect("target weight");
+    assert_eq!(target.value, "69");
+    let e = ex("Target K > 4.0, Mg > 1.0.");
+    assert!(!e
+        .statements
+        .iter()
+        .any(|s| s.kind == StatementKind::TargetWeight));
+}
