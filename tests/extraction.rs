@@ -480,6 +480,9 @@ fn age_and_sex() {
         ("82-year-old woman with HFpEF", "82", "female"),
         ("Patient: K.L., F, 67", "67", "female"),
         ("Mrs K.L., 64 years", "64", "female"),
+        // A title and name, then the age after a comma (common practice, no source).
+        ("Ward round. Mr A.B., 74. Known HFrEF.", "74", "male"),
+        ("Ms Example, 58, reviewed on the ward", "58", "female"),
     ] {
         let e = ex(text);
         let get = |k| {
@@ -490,6 +493,21 @@ fn age_and_sex() {
         };
         assert_eq!(get(StatementKind::Age).as_deref(), Some(age), "{text}");
         assert_eq!(get(StatementKind::Sex).as_deref(), Some(sex), "{text}");
+    }
+}
+
+#[test]
+fn a_number_after_a_name_that_is_not_an_age_is_not_read_as_one() {
+    // `Mr A.B., 74 kg`: a weight; `Mrs C.D., 2F`: no age either.
+    for text in [
+        "Mr A.B., 74 kg on the ward scales",
+        "Mrs C.D., 12345 hospital no.",
+    ] {
+        let e = ex(text);
+        assert!(
+            !e.statements.iter().any(|s| s.kind == StatementKind::Age),
+            "{text}"
+        );
     }
 }
 
@@ -541,4 +559,80 @@ fn shorthand_forms_from_real_practice() {
         ),
         Some(Assertion::Possible)
     );
+}
+
+// Shorthand readings of the ward notes, common practice, no source: a time word between the
+// label and the value places it; clock hours after the label are the period, not the value;
+// the intake and output in brackets behind a balance are not balances; a bracketed number
+// of the same size after a lab value is the earlier value; admission bloods are admission
+// values of this stay.
+#[test]
+fn balance_shorthand_reads_the_balance_and_its_day() {
+    let e = ex("FB yesterday -1.3 L. UO ~90 ml/h.");
+    let fb: Vec<_> = e
+        .measurements
+        .iter()
+        .filter(|m| m.concept == M::FluidBalance)
+        .collect();
+    assert_eq!(fb.len(), 1);
+    assert_eq!(fb[0].time_ref, Some(tidemark::model::TimeRef::Yesterday));
+    assert_eq!(
+        values(
+            "Fluid balance 08:00-16:00: +650 ml (oral 1.1 L, urine 450 ml).",
+            M::FluidBalance
+        ),
+        [650.0]
+    );
+}
+
+#[test]
+fn bracketed_and_admission_values_are_earlier_values() {
+    use tidemark::model::TimeRef;
+    let e = ex("Cr 152↑ (148) K 5.1");
+    let cr: Vec<_> = e
+        .measurements
+        .iter()
+        .filter(|m| m.concept == M::Creatinine)
+        .map(|m| (m.value, m.time_ref))
+        .collect();
+    assert_eq!(cr, [(152.0, None), (148.0, Some(TimeRef::Previous))]);
+    // Another size is the same value in another unit, not an earlier one.
+    let e = ex("Wt 80 kg (176 lb)");
+    assert!(e
+        .measurements
+        .iter()
+        .all(|m| m.time_ref != Some(TimeRef::Previous)));
+    let e = ex("Bloods on admission: creatinine 118 umol/L.\nBloods today: creatinine 134 umol/L.");
+    let adm = e
+        .measurements
+        .iter()
+        .find(|m| m.concept == M::Creatinine && m.value == 118.0)
+        .expect("admission creatinine");
+    assert_eq!(adm.time_ref, Some(TimeRef::Admission));
+}
+
+// Common practice, no source: `today` in a dated weight series is not the day before it, and
+// a bare `target` is a target weight only with a weight unit.
+#[test]
+fn series_time_words_and_bare_targets() {
+    use tidemark::model::{StatementKind, TimeRef};
+    let e = ex("Weights: 13/03 70.1 kg, 15/03 68.4 kg, today 67.6 kg. Target ~69 kg.");
+    let today = e
+        .measurements
+        .iter()
+        .find(|m| m.concept == M::Weight && m.value == 67.6)
+        .expect("today's weight");
+    assert_eq!(today.time_ref, Some(TimeRef::Today));
+    assert_ne!(today.date.as_deref(), Some("2026-03-15"));
+    let target = e
+        .statements
+        .iter()
+        .find(|s| s.kind == StatementKind::TargetWeight)
+        .expect("target weight");
+    assert_eq!(target.value, "69");
+    let e = ex("Target K > 4.0, Mg > 1.0.");
+    assert!(!e
+        .statements
+        .iter()
+        .any(|s| s.kind == StatementKind::TargetWeight));
 }

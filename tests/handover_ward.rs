@@ -1,7 +1,6 @@
 //! End to end over the invented ward day in `corpora-synthetic/ward/` (4 patients, 10
-//! notes). Expected values are worked out by hand from the note text. These need the
-//! extraction stage (measurements, statements, sections, profile), so they are ignored
-//! until it is merged; the snapshots are then recorded from reviewed output.
+//! notes). Expected values are worked out by hand from the note text; the snapshots are
+//! recorded from reviewed output.
 
 use std::process::Command;
 
@@ -59,7 +58,6 @@ fn close(v: &serde_json::Value, expected: f64) -> bool {
 }
 
 #[test]
-#[ignore = "needs extraction"]
 fn ward_day_values() {
     let v: serde_json::Value = serde_json::from_str(&run("json")).expect("json");
     assert_eq!(v["patients"].as_array().map(Vec::len), Some(4));
@@ -130,7 +128,6 @@ fn ward_day_values() {
 }
 
 #[test]
-#[ignore = "needs extraction"]
 fn ward_day_snapshots() {
     insta::assert_snapshot!("ward_day_text", run("text"));
     insta::assert_snapshot!("ward_day_markdown", run("markdown"));

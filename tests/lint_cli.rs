@@ -168,7 +168,6 @@ fn inputs_are_not_modified() {
 /// Needs the extraction stage: "heart failure" with no weight must be reported and reach the
 /// default --fail-on warning.
 #[test]
-#[ignore = "needs the extraction stage (merged later): expects weight-missing and exit 1"]
 fn a_diagnostic_at_the_threshold_exits_1() {
     let dir = tempdir("fail");
     std::fs::write(

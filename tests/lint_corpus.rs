@@ -8,7 +8,6 @@ use std::path::Path;
 use std::process::Command;
 
 #[test]
-#[ignore = "needs the extraction stage (merged later): the corpus must meet its lint gold"]
 fn corpus_meets_its_lint_gold() {
     let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("corpora-synthetic");
     let o = Command::new(env!("CARGO_BIN_EXE_tidemark"))

@@ -19,7 +19,6 @@ fn close(a: Option<f64>, b: f64, tol: f64) -> bool {
 }
 
 #[test]
-#[ignore = "needs the extraction stage; expected to pass after merge"]
 fn discharge_summary_is_judged_on_the_discharge_examination() {
     let a = note("03-uk-discharge-summary-hfref.txt");
     let p = &a.picture;
@@ -48,7 +47,6 @@ fn discharge_summary_is_judged_on_the_discharge_examination() {
 }
 
 #[test]
-#[ignore = "needs the extraction stage; expected to pass after merge"]
 fn daily_weight_table_latest_review_decides() {
     let a = note("07-daily-weight-table-de-novo.txt");
     let p = &a.picture;
@@ -70,7 +68,6 @@ fn daily_weight_table_latest_review_decides() {
 }
 
 #[test]
-#[ignore = "needs the extraction stage; expected to pass after merge"]
 fn euvolaemic_word_against_documented_congestion() {
     let a = note("10-post-take-euvolaemic-contradiction.txt");
     let p = &a.picture;
@@ -92,7 +89,6 @@ fn euvolaemic_word_against_documented_congestion() {
 }
 
 #[test]
-#[ignore = "needs the extraction stage; expected to pass after merge"]
 fn terse_handover_line() {
     let a = note("13-terse-handover-line.txt");
     let p = &a.picture;
@@ -112,7 +108,6 @@ fn terse_handover_line() {
 }
 
 #[test]
-#[ignore = "needs the extraction stage; expected to pass after merge"]
 fn multi_day_record_latest_day_decides() {
     let a = note("15-multi-day-ward-record-deteriorating.txt");
     let p = &a.picture;
@@ -129,7 +124,6 @@ fn multi_day_record_latest_day_decides() {
 }
 
 #[test]
-#[ignore = "needs the extraction stage; expected to pass after merge"]
 fn cold_and_dry_hypovolaemic_patient() {
     let a = note("19-us-progress-note-cold-dry.txt");
     let p = &a.picture;

@@ -530,6 +530,7 @@ pub fn patient_facts(doc: &Doc, out: &mut Output) {
     static AGE_LABEL: OnceLock<Regex> = OnceLock::new();
     static SEX_LABEL: OnceLock<Regex> = OnceLock::new();
     static TITLE: OnceLock<Regex> = OnceLock::new();
+    static TITLE_AGE: OnceLock<Regex> = OnceLock::new();
     let age_sex = re(
         &AGE_SEX,
         r"\b(\d{2,3})\s?(?:yo\s?|y/o\s?|y\.o\.\s?|yrs?\s?)?(M|F)\b",
@@ -548,6 +549,10 @@ pub fn patient_facts(doc: &Doc, out: &mut Output) {
         r"(?i)\b(?:sex|gender)\s*[:=]?\s*(male|female|m|f|man|woman)\b",
     );
     let title = re(&TITLE, r"\b(Mr|Mrs|Ms|Miss)\b\.?\s+[A-Z]");
+    let title_age = re(
+        &TITLE_AGE,
+        r"\b(?:Mr|Mrs|Ms|Miss|Mx)\b\.?[ \t]+[A-Z][A-Za-z.'\-]*(?:[ \t]+[A-Z][A-Za-z.'\-]*){0,2}[ \t]*,[ \t]*(\d{2,3})\b",
+    );
     let text = doc.text;
     let mut age: Option<(usize, usize, String)> = None;
     let mut sex: Option<(usize, usize, String)> = None;
@@ -597,6 +602,21 @@ pub fn patient_facts(doc: &Doc, out: &mut Output) {
             }
             set_sex(&mut sex, m.start(), m.end(), &c[1]);
             break;
+        }
+    }
+    // `Mr A.A., 74.`, `Mrs Smith, 82,`: a title and a name, then the age after a comma.
+    if age.is_none() {
+        for c in title_age.captures_iter(text) {
+            let g = c.get(1).expect("group");
+            let rest = text[g.end()..].trim_start_matches([' ', '\t']);
+            let ends = rest.is_empty()
+                || rest.starts_with(['.', ',', ';', ')', '\n', '\r'])
+                || rest.to_ascii_lowercase().starts_with("y");
+            if let Some(a) = valid_age(g.as_str()).filter(|_| ends) {
+                let m = c.get(0).expect("match");
+                age = Some((m.start(), g.end(), a.to_string()));
+                break;
+            }
         }
     }
     if age.is_none() {

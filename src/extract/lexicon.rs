@@ -35,6 +35,8 @@ pub enum Label {
     WeightDis,
     WeightSeries,
     TargetWeight,
+    /// `target ~69 kg`: a target that is a weight only when a weight unit follows.
+    TargetWeak,
     Height,
     Jvp,
     Jvd,
@@ -168,6 +170,7 @@ fn parse_label(s: &str) -> Option<Label> {
         "weight_dis" => WeightDis,
         "weight_series" => WeightSeries,
         "target_weight" => TargetWeight,
+        "target_weak" => TargetWeak,
         "height" => Height,
         "jvp" => Jvp,
         "jvd" => Jvd,

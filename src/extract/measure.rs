@@ -151,10 +151,21 @@ pub fn reading_of(p: Pair<Rule>, base: usize) -> Option<Reading> {
 /// time word, then any asides (`(yesterday 83.1)`) and chains (`-> 131`).
 pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
     let mut out: Vec<Reading> = Vec::new();
+    // `FB yesterday -1.3 L`: a time word between the label and the value places the value.
+    let mut leading: Option<TimeRef> = None;
     for c in p.into_inner() {
         match c.as_rule() {
+            Rule::when if out.is_empty() && !c.as_str().eq_ignore_ascii_case("was") => {
+                leading = time_ref(c.as_str()).or(leading)
+            }
+            Rule::period
+                if out.is_empty() && c.as_str().trim().eq_ignore_ascii_case("yesterday") =>
+            {
+                leading = Some(TimeRef::Yesterday);
+            }
             Rule::reading | Rule::range_reading if out.is_empty() => {
-                if let Some(r) = reading_of(c, base) {
+                if let Some(mut r) = reading_of(c, base) {
+                    r.time_ref = leading;
                     out.push(r);
                 }
             }
@@ -174,15 +185,31 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
             }
             Rule::trailing_when => {
                 if let Some(r) = out.first_mut() {
-                    r.time_ref = time_ref(c.as_str());
+                    r.time_ref = time_ref(c.as_str()).or(r.time_ref);
                 }
             }
             Rule::aside => {
                 for item in c.into_inner() {
+                    let bare = is_bare_item(&item);
                     if let Some(mut r) = item_reading(item, base) {
-                        // A bare bracketed value after a value is the one before it
-                        // (`Cr 152 (148)`): common practice, no source.
-                        r.time_ref = r.time_ref.or(Some(TimeRef::Previous));
+                        // `Cr 152↑ (148)`, `K 3.6 (AM 4.1)`: a number of the same size in
+                        // brackets after a value is the earlier value it is compared with
+                        // (common practice, no source). One of another size is the value in
+                        // another unit.
+                        if bare && r.time_ref.is_none() {
+                            if let Some(main) = out.first() {
+                                let same_unit =
+                                    r.unit_text.is_none() || r.unit_text == main.unit_text;
+                                let ratio = if main.value != 0.0 {
+                                    r.value / main.value
+                                } else {
+                                    0.0
+                                };
+                                if same_unit && (0.5..=2.0).contains(&ratio) {
+                                    r.time_ref = Some(TimeRef::Previous);
+                                }
+                            }
+                        }
                         out.push(r);
                     }
                 }
@@ -204,6 +231,20 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
         }
     }
     out
+}
+
+/// An aside item that compares with an earlier value: a number alone (`(148)`) or with a
+/// word that is not a later one (`(AM 4.1)`, `(Mon 131)`; not `(repeat 5.2)`, `(post 3.9)`).
+fn is_bare_item(p: &Pair<Rule>) -> bool {
+    const LATER: &[&str] = &[
+        "repeat", "rpt", "re-check", "recheck", "later", "post", "after", "pm",
+    ];
+    p.as_rule() == Rule::aside_item
+        && p.clone().into_inner().all(|c| match c.as_rule() {
+            Rule::reading | Rule::unit => true,
+            Rule::aside_word => !LATER.contains(&c.as_str().to_ascii_lowercase().as_str()),
+            _ => false,
+        })
 }
 
 /// An aside item or a chain link: `[target] [when] reading [unit] [when]`.
@@ -372,6 +413,19 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
     WORDS.iter().any(|w| before.contains(w))
 }
 
+/// `Bloods on admission: ... creatinine 118`: a value the historical cue places at this
+/// stay's admission is an admission value of the series, not one from an earlier stay
+/// (`previous admission`, `before admission` are not).
+fn admission_cue(ctx: &crate::model::Context) -> Option<TimeRef> {
+    let cue = ctx.cues.iter().find(|c| c.family == "historical")?;
+    let t = cue.text.to_ascii_lowercase();
+    let earlier = ["prev", "last", "prior", "before", "pre-", "pre "]
+        .iter()
+        .any(|w| t.contains(w));
+    (!earlier && t.contains("adm") && time_ref(&t) == Some(TimeRef::Admission))
+        .then_some(TimeRef::Admission)
+}
+
 /// Build a measurement from a reading and push it, with its context, unit and date.
 pub fn push(
     doc: &Doc,
@@ -433,7 +487,7 @@ pub fn push(
         assertion: ctx.assertion,
         temporality: ctx.temporality,
         experiencer: ctx.experiencer,
-        time_ref: r.time_ref,
+        time_ref: r.time_ref.or_else(|| admission_cue(&ctx)),
         range: r.range,
         qualifier: r.qualifier,
         unit_text: if unit_inferred {
@@ -541,7 +595,8 @@ fn read_label(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
         Label::Weight | Label::WeightAdm | Label::WeightDis | Label::WeightSeries => {
             weight(doc, out, label, start, end)
         }
-        Label::TargetWeight => target_weight(doc, out, start, end),
+        Label::TargetWeight => target_weight(doc, out, start, end, false),
+        Label::TargetWeak => target_weight(doc, out, start, end, true),
         Label::Height => height(doc, out, start, end),
         Label::Jvp | Label::Jvd => jvp(doc, out, label, start, end),
         Label::Io => intake_output(doc, out, start, end),
@@ -674,12 +729,16 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
             }
             let mut r: Option<Reading> = None;
             let mut date = None;
+            let mut when = None;
             for part in item.into_inner() {
                 match part.as_rule() {
                     Rule::day_token => {
                         let abs = end + part.as_span().start();
                         date = doc.date_at(abs).map(|d| d.iso.clone());
                     }
+                    // `15/03 68.4 kg, today 67.6 kg`: the time word dates this item, not
+                    // the date of the item before it on the line.
+                    Rule::when => when = time_ref(part.as_str()),
                     Rule::reading => r = reading_of(part, end),
                     Rule::unit => {
                         if let Some(r) = r.as_mut() {
@@ -692,6 +751,7 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
             }
             if let Some(mut r) = r {
                 r.date = date;
+                r.time_ref = when;
                 items.push(r);
             }
         }
@@ -704,6 +764,16 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
                 }
                 let s = if i == 0 { start } else { r.start };
                 push(doc, out, MeasureConcept::Weight, r, s, false);
+                if r.time_ref.is_some() && r.date.is_none() {
+                    if let Some(m) = out.measurements.last_mut() {
+                        if m.concept == MeasureConcept::Weight && m.span.start >= s {
+                            m.date = doc
+                                .episode_of(s)
+                                .and_then(|i| doc.episodes[i].date.clone())
+                                .filter(|_| r.time_ref == Some(TimeRef::Today));
+                        }
+                    }
+                }
             }
             return;
         }
@@ -759,7 +829,9 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
     }
 }
 
-fn target_weight(doc: &Doc, out: &mut Output, start: usize, end: usize) {
+/// A target weight; `unit_needed` for a bare `target` or `goal`, which is a weight only
+/// with a weight unit written after the number (`Target ~69 kg`, not `target K > 4`).
+fn target_weight(doc: &Doc, out: &mut Output, start: usize, end: usize, unit_needed: bool) {
     let Some(p) = parse_at(doc, Rule::target_value, end) else {
         return;
     };
@@ -773,6 +845,13 @@ fn target_weight(doc: &Doc, out: &mut Output, start: usize, end: usize) {
         }
     }
     let Some(mut r) = r else { return };
+    if unit_needed
+        && !unit.as_ref().is_some_and(|(u, _)| {
+            units::ucum(u).is_some_and(|c| units::accepts(MeasureConcept::Weight, c))
+        })
+    {
+        return;
+    }
     if let Some((u, e)) = unit {
         r.unit_text = Some(u);
         r.end = e;
@@ -1104,8 +1183,21 @@ fn fluid_balance(doc: &Doc, out: &mut Output, start: usize, end: usize) {
     let Some(mut m) = main else { return };
     m.value *= sign;
     push(doc, out, MeasureConcept::FluidBalance, &m, start, false);
+    // `+650 ml (oral 1.1 L, urine 450 ml)`: the intake and output behind a balance are not
+    // balances themselves.
+    const PARTS: &[&str] = &[
+        "in", "out", "input", "intake", "output", "oral", "po", "iv", "urine", "uo", "drain",
+        "drains", "stool", "vomit",
+    ];
     for r in rest {
-        push(doc, out, MeasureConcept::FluidBalance, &r, r.start, false);
+        let before = doc.text.get(..r.start).unwrap_or("");
+        let item = before.rsplit(['(', ',', ';']).next().unwrap_or("");
+        let part = item
+            .split(|c: char| !c.is_ascii_alphabetic())
+            .any(|w| PARTS.contains(&w.to_ascii_lowercase().as_str()));
+        if !part {
+            push(doc, out, MeasureConcept::FluidBalance, &r, r.start, false);
+        }
     }
 }
 
