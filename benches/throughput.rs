@@ -18,10 +18,9 @@ use std::path::Path;
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
 
-use serde_json::json;
 use tidemark::cli::batch::{for_each_document, BatchOptions};
 use tidemark::cli::inputs::Doc;
-use tidemark::render::json::{extract_document, pretty_document, RunWriter};
+use tidemark::render::json::{extract_document, lint_document, pretty_document, RunWriter};
 use tidemark::{analyze, Config};
 
 const SEED: u64 = 20_260_314;
@@ -75,15 +74,10 @@ fn render_extract(doc: &Doc, config: &Config) -> Vec<u8> {
     pretty_document(&extract_document(doc, a.as_ref()))
 }
 
-/// `lint --format json` rendering of one document (`tidemark-lint/1` document shape).
+/// `lint --format json` rendering of one document, through the command's own renderer.
 fn render_lint(doc: &Doc, config: &Config) -> Vec<u8> {
     let a = doc.text.as_deref().map(|t| analyze(t, config));
-    let diagnostics = a.map(|a| a.diagnostics).unwrap_or_default();
-    pretty_document(&json!({
-        "source": doc.source,
-        "diagnostics": diagnostics,
-        "warnings": doc.warnings,
-    }))
+    pretty_document(&lint_document(doc, a.as_ref()))
 }
 
 struct Pass {

@@ -46,7 +46,7 @@ pub fn analyze(text: &str, config: &Config) -> Analysis {
     let extraction = extract::extract(text, &config.extract);
     let picture = picture::build(&extraction);
     let kind = lint::kind::detect(text, &extraction);
-    let diagnostics = lint::run(text, &extraction, &picture, &config.lint);
+    let diagnostics = lint::run_for_kind(text, &extraction, &picture, kind, &config.lint);
     Analysis {
         extraction,
         picture,

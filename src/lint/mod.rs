@@ -174,7 +174,18 @@ pub fn find_rule(id: &str) -> Option<&'static Rule> {
 ///
 /// Diagnostics come back sorted by position (those without a span last), then by rule id.
 pub fn run(text: &str, ex: &Extraction, pic: &Picture, cfg: &LintConfig) -> Vec<Diagnostic> {
-    let kind = kind::detect(text, ex);
+    run_for_kind(text, ex, pic, kind::detect(text, ex), cfg)
+}
+
+/// [`run`] for a document whose kind is already known (`kind::detect(text, ex)`), so that a
+/// caller that needs the kind as well does not scan the note for it twice.
+pub fn run_for_kind(
+    text: &str,
+    ex: &Extraction,
+    pic: &Picture,
+    kind: kind::DocKind,
+    cfg: &LintConfig,
+) -> Vec<Diagnostic> {
     let cx = Ctx {
         text,
         ex,

@@ -142,9 +142,24 @@ pub fn find_dates(text: &str, order: DateOrder, default_year: Option<i32>) -> Ve
             });
         }
     }
+    // A numeric date inside an ISO or written one is part of it. The named dates, sorted by
+    // start with a running maximum of their ends, answer "does one contain this match" by
+    // binary search rather than a scan of every date found so far (which made a note of many
+    // dates quadratic). Numeric matches never contain each other: they are non-empty and do
+    // not overlap.
+    let mut named: Vec<(usize, usize)> = out.iter().map(|d| (d.start, d.end)).collect();
+    named.sort_unstable();
+    let reach: Vec<usize> = named
+        .iter()
+        .scan(0, |max_end, &(_, end)| {
+            *max_end = end.max(*max_end);
+            Some(*max_end)
+        })
+        .collect();
     for c in numeric_re().captures_iter(text) {
         let m = c.get(0).expect("match");
-        if out.iter().any(|d| d.start <= m.start() && m.end() <= d.end) {
+        let before = named.partition_point(|&(start, _)| start <= m.start());
+        if before > 0 && reach[before - 1] >= m.end() {
             continue;
         }
         // Two-part dates (14/03) only where the caller allows an implied year, and never

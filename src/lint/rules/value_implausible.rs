@@ -125,24 +125,29 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
         ));
     }
     // Diastolic not below systolic: pair each diastolic value with the nearest systolic value
-    // at or before it on the same line.
+    // at or before it on the same line. The systolic values are sorted once by (line, start)
+    // (stably, so that of two at the same start the later in the list wins) and each
+    // diastolic value finds its partner by binary search: linear-logarithmic in the values
+    // however many share a line.
+    let mut systolic: Vec<&Measurement> = cx
+        .ex
+        .measurements
+        .iter()
+        .filter(|m| m.concept == MeasureConcept::SystolicBp && counts(m))
+        .collect();
+    systolic.sort_by_key(|m| (m.span.line, m.span.start));
     for dia in cx
         .ex
         .measurements
         .iter()
         .filter(|m| m.concept == MeasureConcept::DiastolicBp && counts(m))
     {
-        let sys = cx
-            .ex
-            .measurements
-            .iter()
-            .filter(|m| {
-                m.concept == MeasureConcept::SystolicBp
-                    && counts(m)
-                    && m.span.line == dia.span.line
-                    && m.span.start <= dia.span.start
-            })
-            .max_by_key(|m| m.span.start);
+        let key = (dia.span.line, dia.span.start);
+        let after = systolic.partition_point(|m| (m.span.line, m.span.start) <= key);
+        let sys = after
+            .checked_sub(1)
+            .map(|i| systolic[i])
+            .filter(|m| m.span.line == dia.span.line);
         let Some(sys) = sys else { continue };
         let (Some(s), Some(d)) = (sys.normalized, dia.normalized) else {
             continue;
