@@ -82,7 +82,7 @@ fn weights(doc: &Doc, out: &mut Output) {
     static RE: OnceLock<Regex> = OnceLock::new();
     let r = re(
         &RE,
-        r"(?i)\b(\d{2,3}(?:\.\d{1,2})?)\s?(kgs?|kilos|lbs?|pounds)\b|\b(\d{1,2})\s?(?:st|stone)\b",
+        r"(?i)(?-u:\b)(\d{2,3}(?:\.\d{1,2})?)\s?(kgs?|kilos|lbs?|pounds)(?-u:\b)|(?-u:\b)(\d{1,2})\s?(?:st|stone)(?-u:\b)",
     );
     for c in r.captures_iter(doc.text) {
         let m = c.get(0).expect("match");
@@ -194,7 +194,7 @@ fn dated_weight_lists(doc: &Doc, out: &mut Output) {
     static ITEM: OnceLock<Regex> = OnceLock::new();
     let item = re(
         &ITEM,
-        r"(?i)\b(\d{1,2}[/.]\d{1,2}(?:[/.]\d{2,4})?)\s*[:\-–]?\s*(\d{2,3}(?:\.\d{1,2})?)\b(?:\s?(kgs?|lbs?))?",
+        r"(?i)(?-u:\b)(\d{1,2}[/.]\d{1,2}(?:[/.]\d{2,4})?)\s*[:\-–]?\s*(\d{2,3}(?:\.\d{1,2})?)(?-u:\b)(?:\s?(kgs?|lbs?))?",
     );
     for line_no in 0..doc.index.line_count() {
         let range = doc.index.line_range(line_no);
@@ -264,7 +264,7 @@ fn temperatures(doc: &Doc, out: &mut Output) {
     static RE: OnceLock<Regex> = OnceLock::new();
     let r = re(
         &RE,
-        r"(?i)\b(\d{2,3}(?:[.,]\d{1,2})?)\s?(°\s?[CF]\b|º\s?[CF]\b|deg(?:rees?)?\s?[CF]\b|degrees (?:celsius|fahrenheit)|celsius|fahrenheit)",
+        r"(?i)(?-u:\b)(\d{2,3}(?:[.,]\d{1,2})?)\s?(°\s?[CF](?-u:\b)|º\s?[CF](?-u:\b)|deg(?:rees?)?\s?[CF](?-u:\b)|degrees (?:celsius|fahrenheit)|celsius|fahrenheit)",
     );
     for c in r.captures_iter(doc.text) {
         let m = c.get(0).expect("match");
@@ -292,7 +292,7 @@ fn blood_pressures(doc: &Doc, out: &mut Output) {
     static RE: OnceLock<Regex> = OnceLock::new();
     let r = re(
         &RE,
-        r"(?i)\b(\d{2,3})\s?/\s?(\d{2,3})\b(\s*(?:mm ?hg|sitting|standing|lying|supine|seated))?",
+        r"(?i)(?-u:\b)(\d{2,3})\s?/\s?(\d{2,3})(?-u:\b)(\s*(?:mm ?hg|sitting|standing|lying|supine|seated))?",
     );
     for c in r.captures_iter(doc.text) {
         let m = c.get(0).expect("match");
@@ -333,7 +333,7 @@ fn saturations(doc: &Doc, out: &mut Output) {
     static RE: OnceLock<Regex> = OnceLock::new();
     let r = re(
         &RE,
-        r"(?i)\b(\d{2,3})\s?%\s?(?:on\s+)?(?:RA\b|room air|air\b|\d+\s?L\b|\d+\s?l/min|NC\b|FiO2|O2\b|oxygen)",
+        r"(?i)(?-u:\b)(\d{2,3})\s?%\s?(?:on\s+)?(?:RA(?-u:\b)|room air|air(?-u:\b)|\d+\s?L(?-u:\b)|\d+\s?l/min|NC(?-u:\b)|FiO2|O2(?-u:\b)|oxygen)",
     );
     for c in r.captures_iter(doc.text) {
         let m = c.get(0).expect("match");
@@ -361,7 +361,7 @@ fn heart_rates(doc: &Doc, out: &mut Output) {
     static RE: OnceLock<Regex> = OnceLock::new();
     let r = re(
         &RE,
-        r"(?i)\b(\d{2,3})\s?(?:bpm|beats per minute|beats/min)\b",
+        r"(?i)(?-u:\b)(\d{2,3})\s?(?:bpm|beats per minute|beats/min)(?-u:\b)",
     );
     for c in r.captures_iter(doc.text) {
         let m = c.get(0).expect("match");

@@ -56,11 +56,11 @@ fn edema_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
     static LEVEL: OnceLock<Regex> = OnceLock::new();
     let grade = re(
         &GRADE,
-        r"(?i)(?:\b([1-4])\s?\+|(?:^|[\s(])(\+{1,4})(?:[\s),.]|$)|\b(trace)\b|grade\s?([1-4])\b)",
+        r"(?i)(?:(?-u:\b)([1-4])\s?\+|(?:^|[\s(])(\+{1,4})(?:[\s),.]|$)|(?-u:\b)(trace)(?-u:\b)|grade\s?([1-4])(?-u:\b))",
     );
     let level = re(
         &LEVEL,
-        r"(?i)\b(?:to|up to|extending to|reaching)\s+(?:the\s+)?(mid[- ]?shins?|mid[- ]?calf|mid[- ]?calves|mid[- ]?thighs?|ankles?|shins?|calf|calves|knees?|thighs?|groin|hips?|sacrum|abdomen|waist|abdominal wall)\b|\b(sacral|ankle|pedal|shin|knee|thigh)\b",
+        r"(?i)(?-u:\b)(?:to|up to|extending to|reaching)\s+(?:the\s+)?(mid[- ]?shins?|mid[- ]?calf|mid[- ]?calves|mid[- ]?thighs?|ankles?|shins?|calf|calves|knees?|thighs?|groin|hips?|sacrum|abdomen|waist|abdominal wall)(?-u:\b)|(?-u:\b)(sacral|ankle|pedal|shin|knee|thigh)(?-u:\b)",
     );
     let before = clause_before(doc, start, 30);
     let after = clause_after(doc, end, 60);
@@ -110,7 +110,7 @@ fn crackles_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
     static LEVEL: OnceLock<Regex> = OnceLock::new();
     let level = re(
         &LEVEL,
-        r"(?i)\b(bibasal|bibasilar|basal|bases|mid[- ]?zones?|midzones?|throughout|widespread|diffuse|apices|apex|upper zones?|half way up|halfway up)\b",
+        r"(?i)(?-u:\b)(bibasal|bibasilar|basal|bases|mid[- ]?zones?|midzones?|throughout|widespread|diffuse|apices|apex|upper zones?|half way up|halfway up)(?-u:\b)",
     );
     let (a, b) = window(doc, start, end, 30, 50);
     if let Some(c) = level.captures(&doc.text[a..b]) {
@@ -134,7 +134,7 @@ fn trend_of(doc: &Doc, end: usize) -> Option<String> {
     static TREND: OnceLock<Regex> = OnceLock::new();
     let t = re(
         &TREND,
-        r"(?i)\b(improving|improved|resolving|resolved|worse|worsening|better|increasing|increased|decreasing|reduced|less|more|unchanged|persistent|ongoing)\b",
+        r"(?i)(?-u:\b)(improving|improved|resolving|resolved|worse|worsening|better|increasing|increased|decreasing|reduced|less|more|unchanged|persistent|ongoing)(?-u:\b)",
     );
     t.captures(clause_after(doc, end, 40))
         .map(|c| c[1].to_ascii_lowercase())
@@ -270,7 +270,7 @@ pub fn findings(doc: &Doc, out: &mut Output) {
             static SLOT: OnceLock<Regex> = OnceLock::new();
             let r = re(
                 &SLOT,
-                r"(?i)^\s*[:=]\s*(?:(?:nil|none|no|neg|negative|absent|nad|not present)\b|[-–](?:\s|$|[,.;]))",
+                r"(?i)^\s*[:=]\s*(?:(?:nil|none|no|neg|negative|absent|nad|not present)(?-u:\b)|[-–](?:\s|$|[,.;]))",
             );
             let line_end = doc.line_at(end).end;
             r.is_match(&doc.text[end..line_end.max(end)])
@@ -533,25 +533,25 @@ pub fn patient_facts(doc: &Doc, out: &mut Output) {
     static TITLE_AGE: OnceLock<Regex> = OnceLock::new();
     let age_sex = re(
         &AGE_SEX,
-        r"\b(\d{2,3})\s?(?:yo\s?|y/o\s?|y\.o\.\s?|yrs?\s?)?(M|F)\b",
+        r"(?-u:\b)(\d{2,3})\s?(?:yo\s?|y/o\s?|y\.o\.\s?|yrs?\s?)?(M|F)(?-u:\b)",
     );
-    let sex_age = re(&SEX_AGE, r"\b(M|F)\s?[,/]\s?(\d{2,3})\b");
+    let sex_age = re(&SEX_AGE, r"(?-u:\b)(M|F)\s?[,/]\s?(\d{2,3})(?-u:\b)");
     let years = re(
         &YEARS,
-        r"(?i)\b(\d{2,3})[- ]?(?:years?|yrs?|y)[- ]?old\b(?:\s+(man|woman|male|female|gentleman|lady|gent|boy|girl))?|\baged\s+(\d{2,3})\b|\b(\d{2,3})\s?(?:yo|y/o|y\.o\.)\s+(man|woman|male|female|gentleman|lady|gent)?",
+        r"(?i)(?-u:\b)(\d{2,3})[- ]?(?:years?|yrs?|y)[- ]?old(?-u:\b)(?:\s+(man|woman|male|female|gentleman|lady|gent|boy|girl))?|(?-u:\b)aged\s+(\d{2,3})(?-u:\b)|(?-u:\b)(\d{2,3})\s?(?:yo|y/o|y\.o\.)\s+(man|woman|male|female|gentleman|lady|gent)?",
     );
     let age_label = re(
         &AGE_LABEL,
-        r"(?i)\bage\s*[:=]?\s*(\d{2,3})\b|\b(\d{2,3})\s+years\b",
+        r"(?i)(?-u:\b)age\s*[:=]?\s*(\d{2,3})(?-u:\b)|(?-u:\b)(\d{2,3})\s+years(?-u:\b)",
     );
     let sex_label = re(
         &SEX_LABEL,
-        r"(?i)\b(?:sex|gender)\s*[:=]?\s*(male|female|m|f|man|woman)\b",
+        r"(?i)(?-u:\b)(?:sex|gender)\s*[:=]?\s*(male|female|m|f|man|woman)(?-u:\b)",
     );
-    let title = re(&TITLE, r"\b(Mr|Mrs|Ms|Miss)\b\.?\s+[A-Z]");
+    let title = re(&TITLE, r"(?-u:\b)(Mr|Mrs|Ms|Miss)(?-u:\b)\.?\s+[A-Z]");
     let title_age = re(
         &TITLE_AGE,
-        r"\b(?:Mr|Mrs|Ms|Miss|Mx)\b\.?[ \t]+[A-Z][A-Za-z.'\-]*(?:[ \t]+[A-Z][A-Za-z.'\-]*){0,2}[ \t]*,[ \t]*(\d{2,3})\b",
+        r"(?-u:\b)(?:Mr|Mrs|Ms|Miss|Mx)(?-u:\b)\.?[ \t]+[A-Z][A-Za-z.'\-]*(?:[ \t]+[A-Z][A-Za-z.'\-]*){0,2}[ \t]*,[ \t]*(\d{2,3})(?-u:\b)",
     );
     let text = doc.text;
     let mut age: Option<(usize, usize, String)> = None;

@@ -535,7 +535,7 @@ fn weak_ok(doc: &Doc, label: Label, r: &Reading) -> bool {
         static SPAN: std::sync::OnceLock<regex::Regex> = std::sync::OnceLock::new();
         let re = SPAN.get_or_init(|| {
             regex::Regex::new(
-                r"^\s?(?i:h|hr|hrs|hours?|mins?|minutes?|days?|wks?|weeks?|months?|years?|yrs?)\b",
+                r"^\s?(?i:h|hr|hrs|hours?|mins?|minutes?|days?|wks?|weeks?|months?|years?|yrs?)(?-u:\b)",
             )
             .expect("valid regex")
         });
@@ -1017,7 +1017,7 @@ fn jvp_words(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize
     static WORDS: std::sync::OnceLock<regex::Regex> = std::sync::OnceLock::new();
     let re = WORDS.get_or_init(|| {
         regex::Regex::new(
-            r"^(?i)\s*[:\-–=]?\s*(?:(?:was|is|were|appears?|looks?|remains?|now|today)\s+)*(?:(not|non|no longer)[- ]?(raised|elevated|distended|up|visible|seen|assessable)|(normal|flat|low|nr\b|n/r|unremarkable|down|within normal limits)|(raised|elevated|distended|up|high|visible))",
+            r"^(?i)\s*[:\-–=]?\s*(?:(?:was|is|were|appears?|looks?|remains?|now|today)\s+)*(?:(not|non|no longer)[- ]?(raised|elevated|distended|up|visible|seen|assessable)|(normal|flat|low|nr(?-u:\b)|n/r|unremarkable|down|within normal limits)|(raised|elevated|distended|up|high|visible))",
         )
         .expect("valid regex")
     });

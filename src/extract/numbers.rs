@@ -100,7 +100,8 @@ pub fn time_ref(word: &str) -> Option<TimeRef> {
 pub fn weight_unit_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();
     RE.get_or_init(|| {
-        Regex::new(r"(?i)\b\d{2,3}(?:\.\d+)?\s?(kgs?|kilos?|lbs?|pounds)\b").expect("valid regex")
+        Regex::new(r"(?i)(?-u:\b)\d{2,3}(?:\.\d+)?\s?(kgs?|kilos?|lbs?|pounds)(?-u:\b)")
+            .expect("valid regex")
     })
 }
 

@@ -53,7 +53,7 @@ fn mrn_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();
     RE.get_or_init(|| {
         Regex::new(
-            r"(?i)\b(?:MRN|hospital\s+(?:no|number)|hosp\s+no|unit\s+no|NHS\s+(?:no|number)|patient\s+id|H/N)\.?\s*[:#]?\s*([A-Z]{0,3}[0-9]{3,}(?:[ -][0-9]{3,})*)\b",
+            r"(?i)(?-u:\b)(?:MRN|hospital\s+(?:no|number)|hosp\s+no|unit\s+no|NHS\s+(?:no|number)|patient\s+id|H/N)\.?\s*[:#]?\s*([A-Z]{0,3}[0-9]{3,}(?:[ -][0-9]{3,})*)(?-u:\b)",
         )
         .expect("valid regex")
     })
@@ -63,7 +63,7 @@ fn bed_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();
     RE.get_or_init(|| {
         Regex::new(
-            r"(?i)\b(?:(?:ward|unit)\s+([A-Za-z0-9]+)[,\s/-]+)?bed\s*(?:no\.?\s*)?([0-9]{1,3}[A-Za-z]?)\b",
+            r"(?i)(?-u:\b)(?:(?:ward|unit)\s+([A-Za-z0-9]+)[,\s/-]+)?bed\s*(?:no\.?\s*)?([0-9]{1,3}[A-Za-z]?)(?-u:\b)",
         )
         .expect("valid regex")
     })

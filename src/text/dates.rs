@@ -22,14 +22,15 @@ pub struct FoundDate {
 fn numeric_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();
     RE.get_or_init(|| {
-        Regex::new(r"\b(\d{1,2})([/.])(\d{1,2})(?:[/.](\d{4}|\d{2}))?\b").expect("valid regex")
+        Regex::new(r"(?-u:\b)(\d{1,2})([/.])(\d{1,2})(?:[/.](\d{4}|\d{2}))?(?-u:\b)")
+            .expect("valid regex")
     })
 }
 
 fn iso_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();
     RE.get_or_init(|| {
-        Regex::new(r"\b(20\d{2}|19\d{2})-(\d{1,2})-(\d{1,2})\b").expect("valid regex")
+        Regex::new(r"(?-u:\b)(20\d{2}|19\d{2})-(\d{1,2})-(\d{1,2})(?-u:\b)").expect("valid regex")
     })
 }
 
@@ -37,7 +38,7 @@ fn written_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();
     RE.get_or_init(|| {
         Regex::new(
-            r"(?i)\b(?:(\d{1,2})(?:st|nd|rd|th)?\s+(jan|feb|mar|apr|may|jun|jul|aug|sep|sept|oct|nov|dec)[a-z]*\.?,?\s+(\d{4})|(jan|feb|mar|apr|may|jun|jul|aug|sep|sept|oct|nov|dec)[a-z]*\.?\s+(\d{1,2})(?:st|nd|rd|th)?,?\s+(\d{4}))\b",
+            r"(?i)(?-u:\b)(?:(\d{1,2})(?:st|nd|rd|th)?\s+(jan|feb|mar|apr|may|jun|jul|aug|sep|sept|oct|nov|dec)[a-z]*\.?,?\s+(\d{4})|(jan|feb|mar|apr|may|jun|jul|aug|sep|sept|oct|nov|dec)[a-z]*\.?\s+(\d{1,2})(?:st|nd|rd|th)?,?\s+(\d{4}))(?-u:\b)",
         )
         .expect("valid regex")
     })
@@ -45,7 +46,9 @@ fn written_re() -> &'static Regex {
 
 fn time_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();
-    RE.get_or_init(|| Regex::new(r"\b([01]?\d|2[0-3])[:.h]([0-5]\d)\b").expect("valid regex"))
+    RE.get_or_init(|| {
+        Regex::new(r"(?-u:\b)([01]?\d|2[0-3])[:.h]([0-5]\d)(?-u:\b)").expect("valid regex")
+    })
 }
 
 fn month_number(m: &str) -> u32 {
