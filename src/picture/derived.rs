@@ -179,25 +179,37 @@ pub fn value(m: &Measurement) -> f64 {
 /// whose systolic is not above its diastolic (`60/80`) is rejected, as are non-finite or
 /// non-positive values.
 pub fn bp_pairs(ex: &Extraction) -> Vec<BpPair<'_>> {
-    let dias: Vec<&Measurement> = ex
+    let mut dias: Vec<&Measurement> = ex
         .measurements
         .iter()
         .filter(|m| m.concept == MeasureConcept::DiastolicBp)
         .collect();
+    dias.sort_by_key(|d| d.span.start);
     let mut used = vec![false; dias.len()];
     let mut out = Vec::new();
+    // A partner starts within a few bytes of the systolic value's span, and no value's span
+    // is longer than a few lines, so only a window of the sorted diastolic values is searched
+    // (linear cost on a note with very many readings).
+    const WINDOW: usize = 4096;
     for s in ex
         .measurements
         .iter()
         .filter(|m| m.concept == MeasureConcept::SystolicBp)
     {
-        let found = dias.iter().enumerate().find(|(i, d)| {
-            !used[*i]
-                && (d.span == s.span
-                    || (d.span.start < s.span.end.max(s.span.start.saturating_add(1))
-                        && s.span.start < d.span.end.max(d.span.start.saturating_add(1)))
-                    || (d.span.start >= s.span.end && d.span.start <= s.span.end.saturating_add(3)))
-        });
+        let from = dias.partition_point(|d| d.span.start.saturating_add(WINDOW) < s.span.start);
+        let to = dias.partition_point(|d| d.span.start <= s.span.end.saturating_add(3));
+        let found = dias[from..to.max(from)]
+            .iter()
+            .enumerate()
+            .map(|(i, d)| (i + from, d))
+            .find(|(i, d)| {
+                !used[*i]
+                    && (d.span == s.span
+                        || (d.span.start < s.span.end.max(s.span.start.saturating_add(1))
+                            && s.span.start < d.span.end.max(d.span.start.saturating_add(1)))
+                        || (d.span.start >= s.span.end
+                            && d.span.start <= s.span.end.saturating_add(3)))
+            });
         if let Some((i, d)) = found {
             used[i] = true;
             let pair = BpPair { sbp: s, dbp: d };
