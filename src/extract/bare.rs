@@ -11,9 +11,7 @@ use super::numbers::parse_number;
 use super::Doc;
 use crate::model::MeasureConcept;
 
-fn re(cell: &'static OnceLock<Regex>, pat: &str) -> &'static Regex {
-    cell.get_or_init(|| Regex::new(pat).expect("valid regex"))
-}
+use super::numbers::cached as re;
 
 /// Words before a weight or volume that make it a change, a target or a dose, not a
 /// measurement (common practice, no source).
@@ -266,6 +264,26 @@ fn temperatures(doc: &Doc, out: &mut Output) {
         &RE,
         r"(?i)(?-u:\b)(\d{2,3}(?:[.,]\d{1,2})?)\s?(°\s?[CF](?-u:\b)|º\s?[CF](?-u:\b)|deg(?:rees?)?\s?[CF](?-u:\b)|degrees (?:celsius|fahrenheit)|celsius|fahrenheit)",
     );
+    unit_values(
+        doc,
+        out,
+        r,
+        MeasureConcept::Temperature,
+        |v| (25.0..=45.0).contains(&v) || (77.0..=113.0).contains(&v),
+        |c| c[2].to_string(),
+    );
+}
+
+/// A value with its unit written after it, found by `r` (group 1 the number): pushed when
+/// not already read and `plausible` accepts it; `unit` gives the unit text from the match.
+fn unit_values(
+    doc: &Doc,
+    out: &mut Output,
+    r: &Regex,
+    concept: MeasureConcept,
+    plausible: impl Fn(f64) -> bool,
+    unit: impl Fn(&regex::Captures) -> String,
+) {
     for c in r.captures_iter(doc.text) {
         let m = c.get(0).expect("match");
         if out.is_covered(m.start(), m.end()) {
@@ -274,17 +292,17 @@ fn temperatures(doc: &Doc, out: &mut Output) {
         let Some(v) = parse_number(&c[1]) else {
             continue;
         };
-        if !((25.0..=45.0).contains(&v) || (77.0..=113.0).contains(&v)) {
+        if !plausible(v) {
             continue;
         }
         let rd = Reading {
             value: v,
             start: m.start(),
             end: m.end(),
-            unit_text: Some(c[2].to_string()),
+            unit_text: Some(unit(&c)),
             ..Reading::default()
         };
-        push(doc, out, MeasureConcept::Temperature, &rd, m.start(), false);
+        push(doc, out, concept, &rd, m.start(), false);
     }
 }
 
@@ -335,26 +353,14 @@ fn saturations(doc: &Doc, out: &mut Output) {
         &RE,
         r"(?i)(?-u:\b)(\d{2,3})\s?%\s?(?:on\s+)?(?:RA(?-u:\b)|room air|air(?-u:\b)|\d+\s?L(?-u:\b)|\d+\s?l/min|NC(?-u:\b)|FiO2|O2(?-u:\b)|oxygen)",
     );
-    for c in r.captures_iter(doc.text) {
-        let m = c.get(0).expect("match");
-        if out.is_covered(m.start(), m.end()) {
-            continue;
-        }
-        let Some(v) = parse_number(&c[1]) else {
-            continue;
-        };
-        if !(50.0..=100.0).contains(&v) {
-            continue;
-        }
-        let rd = Reading {
-            value: v,
-            start: m.start(),
-            end: m.end(),
-            unit_text: Some("%".into()),
-            ..Reading::default()
-        };
-        push(doc, out, MeasureConcept::Spo2, &rd, m.start(), false);
-    }
+    unit_values(
+        doc,
+        out,
+        r,
+        MeasureConcept::Spo2,
+        |v| (50.0..=100.0).contains(&v),
+        |_| "%".into(),
+    );
 }
 
 fn heart_rates(doc: &Doc, out: &mut Output) {
@@ -363,23 +369,14 @@ fn heart_rates(doc: &Doc, out: &mut Output) {
         &RE,
         r"(?i)(?-u:\b)(\d{2,3})\s?(?:bpm|beats per minute|beats/min)(?-u:\b)",
     );
-    for c in r.captures_iter(doc.text) {
-        let m = c.get(0).expect("match");
-        if out.is_covered(m.start(), m.end()) {
-            continue;
-        }
-        let Some(v) = parse_number(&c[1]) else {
-            continue;
-        };
-        let rd = Reading {
-            value: v,
-            start: m.start(),
-            end: m.end(),
-            unit_text: Some("bpm".into()),
-            ..Reading::default()
-        };
-        push(doc, out, MeasureConcept::HeartRate, &rd, m.start(), false);
-    }
+    unit_values(
+        doc,
+        out,
+        r,
+        MeasureConcept::HeartRate,
+        |_| true,
+        |_| "bpm".into(),
+    );
 }
 
 /// What a table column holds.

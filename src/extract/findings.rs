@@ -16,9 +16,7 @@ use super::Doc;
 use crate::context::Target;
 use crate::model::{Assertion, Finding, FindingConcept, FindingDetail, Statement, StatementKind};
 
-fn re(cell: &'static OnceLock<Regex>, pat: &str) -> &'static Regex {
-    cell.get_or_init(|| Regex::new(pat).expect("valid regex"))
-}
+use super::numbers::cached as re;
 
 /// The text of the same line within `before` bytes before and `after` bytes after a range,
 /// on character boundaries.

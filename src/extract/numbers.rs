@@ -96,6 +96,11 @@ pub fn time_ref(word: &str) -> Option<TimeRef> {
     Some(r)
 }
 
+/// A regex compiled once into `cell` (patterns are literals of this crate, so they compile).
+pub fn cached(cell: &'static OnceLock<Regex>, pat: &str) -> &'static Regex {
+    cell.get_or_init(|| Regex::new(pat).expect("valid regex"))
+}
+
 /// Weights written with a unit, for the document's weight unit.
 pub fn weight_unit_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();
