@@ -20,8 +20,12 @@ use std::time::{Duration, Instant};
 
 use tidemark::cli::batch::{for_each_document, BatchOptions};
 use tidemark::cli::inputs::Doc;
-use tidemark::render::json::{extract_document, lint_document, pretty_document, RunWriter};
+use tidemark::render::json::{extract_view, lint_view, pretty_document, RunWriter};
 use tidemark::{analyze, Config};
+
+/// The same allocator as the `tidemark` binary, so in-process figures match it.
+#[global_allocator]
+static ALLOCATOR: mimalloc::MiMalloc = mimalloc::MiMalloc;
 
 const SEED: u64 = 20_260_314;
 
@@ -71,13 +75,13 @@ fn opts(jobs: usize) -> BatchOptions {
 /// `extract --format json` rendering of one document.
 fn render_extract(doc: &Doc, config: &Config) -> Vec<u8> {
     let a = doc.text.as_deref().map(|t| analyze(t, config));
-    pretty_document(&extract_document(doc, a.as_ref()))
+    pretty_document(&extract_view(doc, a.as_ref(), None))
 }
 
 /// `lint --format json` rendering of one document, through the command's own renderer.
 fn render_lint(doc: &Doc, config: &Config) -> Vec<u8> {
     let a = doc.text.as_deref().map(|t| analyze(t, config));
-    pretty_document(&lint_document(doc, a.as_ref()))
+    pretty_document(&lint_view(doc, a.as_ref(), None))
 }
 
 struct Pass {

@@ -32,7 +32,7 @@ pub fn run(args: &ExtractArgs) -> i32 {
         let mut bytes = Vec::new();
         match format {
             ExtractFormat::Json => {
-                let v = render::json::extract_document(doc, analysis.as_ref());
+                let v = render::json::extract_view(doc, analysis.as_ref(), None);
                 bytes = render::json::pretty_document(&v);
             }
             ExtractFormat::Jsonl => {

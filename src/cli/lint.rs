@@ -149,7 +149,7 @@ pub fn run(args: &LintArgs) -> i32 {
                 .is_some_and(|a| a.diagnostics.iter().any(|d| threshold.fails(d.severity)));
             let mut bytes = Vec::new();
             if format == LintFormat::Json {
-                let v = render::json::lint_document(doc, analysis.as_ref());
+                let v = render::json::lint_view(doc, analysis.as_ref(), None);
                 bytes = render::json::pretty_document(&v);
             } else {
                 render::json::write_lint_line(&mut bytes, doc, analysis.as_ref())

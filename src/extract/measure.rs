@@ -9,7 +9,7 @@ use pest::iterators::Pair;
 use pest::Parser;
 
 use super::lexicon::{Kind, Label};
-use super::numbers::{parse_number, time_ref};
+use super::numbers::{parse_number, time_ref, PhraseSet};
 use super::Doc;
 use crate::context::Target;
 use crate::grammar::{Rule, ValueParser};
@@ -389,8 +389,7 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
     while !doc.text.is_char_boundary(from) {
         from += 1;
     }
-    let before = doc.text[from..start].to_ascii_lowercase();
-    const WORDS: &[&str] = &[
+    static WORDS: PhraseSet = PhraseSet::new(&[
         "aim",
         "target",
         "goal",
@@ -409,8 +408,8 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
         "stop if",
         "recheck",
         "re-check",
-    ];
-    WORDS.iter().any(|w| before.contains(w))
+    ]);
+    WORDS.any_in(&doc.text[from..start])
 }
 
 /// `Bloods on admission: ... creatinine 118`: a value the historical cue places at this

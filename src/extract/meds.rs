@@ -548,6 +548,15 @@ fn frequency_of(word: &str) -> Option<(&'static str, Option<f64>)> {
     Some(f)
 }
 
+/// One automaton over [`FREQUENCY_PHRASES`], built once.
+fn frequency_automaton() -> &'static aho_corasick::AhoCorasick {
+    static AC: std::sync::OnceLock<aho_corasick::AhoCorasick> = std::sync::OnceLock::new();
+    AC.get_or_init(|| {
+        aho_corasick::AhoCorasick::new(FREQUENCY_PHRASES.iter().map(|f| f.0))
+            .expect("frequency phrases form a valid automaton")
+    })
+}
+
 /// Multi-word frequencies, matched on the lower-case scope: (phrase, name, per day).
 const FREQUENCY_PHRASES: &[(&str, &str, Option<f64>)] = &[
     ("once daily", "od", Some(1.0)),
@@ -985,8 +994,14 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
             .map(|w| w.text.as_str())
             .collect::<Vec<_>>()
             .join(" ");
-        for (phrase, name, per_day) in FREQUENCY_PHRASES {
-            if let Some(pos) = lower.find(phrase) {
+        // The first phrase of the list that occurs, at its first occurrence.
+        let first = frequency_automaton()
+            .find_overlapping_iter(&lower)
+            .map(|m| (m.pattern().as_usize(), m.start()))
+            .min();
+        if let Some((pi, pos)) = first {
+            let (phrase, name, per_day) = &FREQUENCY_PHRASES[pi];
+            {
                 // Find the word index holding the end of the phrase.
                 let end = pos + phrase.len();
                 let mut acc = 0;

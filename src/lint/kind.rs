@@ -4,6 +4,9 @@
 //! The opening lines (the header block) weigh most; section kinds found by extraction add to
 //! the score. Cue lists are common practice of UK and US note writing (no source).
 
+use std::sync::OnceLock;
+
+use aho_corasick::AhoCorasick;
 use serde::Serialize;
 
 use crate::model::{Extraction, SectionKind};
@@ -151,6 +154,38 @@ pub(crate) fn has_phrase(hay: &str, phrase: &str) -> bool {
     false
 }
 
+/// One automaton over every cue phrase, built once.
+fn cue_automaton() -> &'static AhoCorasick {
+    static AC: OnceLock<AhoCorasick> = OnceLock::new();
+    AC.get_or_init(|| {
+        AhoCorasick::new(CUES.iter().map(|c| c.1)).expect("cue phrases form a valid automaton")
+    })
+}
+
+/// Where a cue was seen: 0 on the title line, 1 in the header block, 2 in the body.
+fn cue_places(lower: &str, title: std::ops::Range<usize>, header_end: usize) -> Vec<u8> {
+    let bytes = lower.as_bytes();
+    let mut best = vec![u8::MAX; CUES.len()];
+    for m in cue_automaton().find_overlapping_iter(lower) {
+        let (start, end) = (m.start(), m.end());
+        let before_ok = start == 0 || !bytes[start - 1].is_ascii_alphanumeric();
+        let after_ok = end >= bytes.len() || !bytes[end].is_ascii_alphanumeric();
+        if !(before_ok && after_ok) {
+            continue;
+        }
+        let place = if start >= title.start && end <= title.end {
+            0
+        } else if end <= header_end {
+            1
+        } else {
+            2
+        };
+        let slot = &mut best[m.pattern().as_usize()];
+        *slot = (*slot).min(place);
+    }
+    best
+}
+
 /// Decide the kind of a note from its header block, its wording and its sections.
 pub fn detect(text: &str, ex: &Extraction) -> DocKind {
     let lower = text.to_lowercase();
@@ -160,18 +195,24 @@ pub fn detect(text: &str, ex: &Extraction) -> DocKind {
         .map(|(i, _)| i)
         .unwrap_or(lower.len());
     let header = &lower[..header_end];
-    let title = header.lines().find(|l| !l.trim().is_empty()).unwrap_or("");
-    let body = &lower[header_end..];
+    let title = header
+        .split('\n')
+        .scan(0usize, |at, line| {
+            let start = *at;
+            *at += line.len() + 1;
+            Some(start..start + line.trim_end_matches('\r').len())
+        })
+        .find(|r| !lower[r.clone()].trim().is_empty())
+        .unwrap_or(0..0);
     let mut score = [0u32; 5];
     let slot = |k: DocKind| DocKind::ALL.iter().position(|x| *x == k).unwrap_or(4);
-    for &(kind, phrase, weight) in CUES {
-        if has_phrase(title, phrase) {
-            score[slot(kind)] += weight * 2;
-        } else if has_phrase(header, phrase) {
-            score[slot(kind)] += weight;
-        } else if has_phrase(body, phrase) {
-            score[slot(kind)] += (weight / 3).max(1);
-        }
+    for (&(kind, _, weight), place) in CUES.iter().zip(cue_places(&lower, title, header_end)) {
+        score[slot(kind)] += match place {
+            0 => weight * 2,
+            1 => weight,
+            2 => (weight / 3).max(1),
+            _ => 0,
+        };
     }
     for s in &ex.sections {
         match s.kind {

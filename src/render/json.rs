@@ -7,50 +7,100 @@
 
 use std::io::{self, Write};
 
+use serde::Serialize;
 use serde_json::{json, Value};
 
 use crate::cli::inputs::Doc;
+use crate::lint::{Diagnostic, DocKind};
+use crate::model::{Episode, Finding, InputWarning, Measurement, Medication, Section, Statement};
+use crate::picture::trends::Trends;
+use crate::picture::{Classifications, Derived, Patient, Profile};
 use crate::Analysis;
 
 pub const EXTRACT_SCHEMA: &str = "tidemark-extract/1";
 
-/// The JSON value of one document's extraction.
-pub fn extract_document(doc: &Doc, analysis: Option<&Analysis>) -> Value {
-    let mut v = json!({
-        "source": doc.source,
-        "warnings": doc.warnings,
-    });
-    let obj = v.as_object_mut().expect("json! object");
+/// One document's extraction as it is serialised: the keys in the documented order.
+/// Serialising this view directly, rather than through a [`Value`] tree, saves building and
+/// freeing a tree per document on the batch path.
+#[derive(Serialize)]
+#[serde(untagged)]
+pub enum ExtractDocument<'a> {
+    Analysed {
+        source: &'a str,
+        warnings: &'a [InputWarning],
+        note_date: &'a Option<String>,
+        measurements: &'a [Measurement],
+        findings: &'a [Finding],
+        statements: &'a [Statement],
+        medications: &'a [Medication],
+        sections: &'a [Section],
+        episodes: &'a [Episode],
+        profile: &'a Profile,
+        classifications: &'a Classifications,
+        patient: &'a Patient,
+        derived: &'a Derived,
+        trends: &'a Trends,
+        #[serde(skip_serializing_if = "Option::is_none")]
+        schema: Option<&'static str>,
+    },
+    Skipped {
+        source: &'a str,
+        warnings: &'a [InputWarning],
+        measurements: [(); 0],
+        findings: [(); 0],
+        statements: [(); 0],
+        medications: [(); 0],
+        sections: [(); 0],
+        #[serde(skip_serializing_if = "Option::is_none")]
+        schema: Option<&'static str>,
+    },
+}
+
+/// The typed view of one document's extraction; `schema` adds the `schema` key last (as
+/// JSON Lines carry it).
+pub fn extract_view<'a>(
+    doc: &'a Doc,
+    analysis: Option<&'a Analysis>,
+    schema: Option<&'static str>,
+) -> ExtractDocument<'a> {
     match analysis {
         Some(a) => {
             let ex = &a.extraction;
-            obj.insert("note_date".into(), json!(ex.note_date));
-            obj.insert("measurements".into(), json!(ex.measurements));
-            obj.insert("findings".into(), json!(ex.findings));
-            obj.insert("statements".into(), json!(ex.statements));
-            obj.insert("medications".into(), json!(ex.medications));
-            obj.insert("sections".into(), json!(ex.sections));
-            obj.insert("episodes".into(), json!(ex.episodes));
             let p = &a.picture;
-            obj.insert("profile".into(), json!(p.profile));
-            obj.insert("classifications".into(), json!(p.classifications));
-            obj.insert("patient".into(), json!(p.patient));
-            obj.insert("derived".into(), json!(p.derived));
-            obj.insert("trends".into(), json!(p.trends));
-        }
-        None => {
-            for key in [
-                "measurements",
-                "findings",
-                "statements",
-                "medications",
-                "sections",
-            ] {
-                obj.insert(key.into(), json!([]));
+            ExtractDocument::Analysed {
+                source: &doc.source,
+                warnings: &doc.warnings,
+                note_date: &ex.note_date,
+                measurements: &ex.measurements,
+                findings: &ex.findings,
+                statements: &ex.statements,
+                medications: &ex.medications,
+                sections: &ex.sections,
+                episodes: &ex.episodes,
+                profile: &p.profile,
+                classifications: &p.classifications,
+                patient: &p.patient,
+                derived: &p.derived,
+                trends: &p.trends,
+                schema,
             }
         }
+        None => ExtractDocument::Skipped {
+            source: &doc.source,
+            warnings: &doc.warnings,
+            measurements: [],
+            findings: [],
+            statements: [],
+            medications: [],
+            sections: [],
+            schema,
+        },
     }
-    v
+}
+
+/// The JSON value of one document's extraction.
+pub fn extract_document(doc: &Doc, analysis: Option<&Analysis>) -> Value {
+    serde_json::to_value(extract_view(doc, analysis, None)).unwrap_or(Value::Null)
 }
 
 /// Write the whole run as one pretty-printed object.
@@ -60,7 +110,7 @@ pub fn write_extract_run<W: Write>(
 ) -> io::Result<()> {
     let mut run = RunWriter::start(out, EXTRACT_SCHEMA)?;
     for (d, a) in docs {
-        run.document(out, &pretty_document(&extract_document(d, a.as_ref())))?;
+        run.document(out, &pretty_document(&extract_view(d, a.as_ref(), None)))?;
     }
     run.end(out)
 }
@@ -101,9 +151,10 @@ impl RunWriter {
 
 /// One document pretty-printed at the depth it has inside a run object (for
 /// [`RunWriter::document`]); cheap to call on worker threads.
-pub fn pretty_document(value: &Value) -> Vec<u8> {
+pub fn pretty_document<T: Serialize + ?Sized>(value: &T) -> Vec<u8> {
     let body = serde_json::to_vec_pretty(value).unwrap_or_else(|_| b"null".to_vec());
-    let mut out = Vec::with_capacity(body.len() + body.len() / 8 + 8);
+    let lines = memchr::memchr_iter(b'\n', &body).count();
+    let mut out = Vec::with_capacity(body.len() + 4 * (lines + 1));
     // JSON strings never contain a raw newline, so every line break is structural.
     for (i, line) in body.split(|&b| b == b'\n').enumerate() {
         if i > 0 {
@@ -121,43 +172,52 @@ pub fn write_extract_line<W: Write>(
     doc: &Doc,
     a: Option<&Analysis>,
 ) -> io::Result<()> {
-    let mut v = extract_document(doc, a);
-    v.as_object_mut()
-        .expect("object")
-        .insert("schema".into(), json!(EXTRACT_SCHEMA));
-    serde_json::to_writer(&mut *out, &v)?;
+    serde_json::to_writer(&mut *out, &extract_view(doc, a, Some(EXTRACT_SCHEMA)))?;
     out.write_all(b"\n")
 }
 
 pub const LINT_SCHEMA: &str = "tidemark-lint/1";
 
-/// The JSON value of one document's lint result (`tidemark-lint/1`): `source`, `kind`
+/// One document's lint result as it is serialised (`tidemark-lint/1`): `source`, `kind`
 /// (`discharge_summary`, `progress_note`, `nursing_obs`, `clinic_letter`, `other`, or null
 /// for a skipped input), `diagnostics` (`rule`, `severity`, `category`, `message`, `query`?,
-/// `span` or null, `fix`?) and `warnings`. Documented in
+/// `span` or null, `fix`?) and `warnings`; `schema` last when set. Documented in
 /// `docs/schema/tidemark-lint-1.schema.json`.
-pub fn lint_document(doc: &Doc, analysis: Option<&Analysis>) -> Value {
-    match analysis {
-        Some(a) => json!({
-            "source": doc.source,
-            "kind": a.kind,
-            "diagnostics": a.diagnostics,
-            "warnings": doc.warnings,
-        }),
-        None => json!({
-            "source": doc.source,
-            "kind": null,
-            "diagnostics": [],
-            "warnings": doc.warnings,
-        }),
+#[derive(Serialize)]
+pub struct LintDocument<'a> {
+    source: &'a str,
+    kind: Option<DocKind>,
+    diagnostics: &'a [Diagnostic],
+    warnings: &'a [InputWarning],
+    #[serde(skip_serializing_if = "Option::is_none")]
+    schema: Option<&'static str>,
+}
+
+/// The typed view of one document's lint result.
+pub fn lint_view<'a>(
+    doc: &'a Doc,
+    analysis: Option<&'a Analysis>,
+    schema: Option<&'static str>,
+) -> LintDocument<'a> {
+    LintDocument {
+        source: &doc.source,
+        kind: analysis.map(|a| a.kind),
+        diagnostics: analysis.map_or(&[], |a| a.diagnostics.as_slice()),
+        warnings: &doc.warnings,
+        schema,
     }
+}
+
+/// The JSON value of one document's lint result (see [`LintDocument`]).
+pub fn lint_document(doc: &Doc, analysis: Option<&Analysis>) -> Value {
+    serde_json::to_value(lint_view(doc, analysis, None)).unwrap_or(Value::Null)
 }
 
 /// Write the whole lint run as one pretty-printed object.
 pub fn write_lint_run<W: Write>(out: &mut W, docs: &[(Doc, Option<Analysis>)]) -> io::Result<()> {
-    let documents: Vec<Value> = docs
+    let documents: Vec<LintDocument> = docs
         .iter()
-        .map(|(d, a)| lint_document(d, a.as_ref()))
+        .map(|(d, a)| lint_view(d, a.as_ref(), None))
         .collect();
     let run = json!({"schema": LINT_SCHEMA, "documents": documents});
     serde_json::to_writer_pretty(&mut *out, &run)?;
@@ -167,11 +227,7 @@ pub fn write_lint_run<W: Write>(out: &mut W, docs: &[(Doc, Option<Analysis>)]) -
 /// Write one document's lint result as one line, with the `schema` key added (as the
 /// extract command's JSON Lines do).
 pub fn write_lint_line<W: Write>(out: &mut W, doc: &Doc, a: Option<&Analysis>) -> io::Result<()> {
-    let mut v = lint_document(doc, a);
-    v.as_object_mut()
-        .expect("object")
-        .insert("schema".into(), json!(LINT_SCHEMA));
-    serde_json::to_writer(&mut *out, &v)?;
+    serde_json::to_writer(&mut *out, &lint_view(doc, a, Some(LINT_SCHEMA)))?;
     out.write_all(b"\n")
 }
 
