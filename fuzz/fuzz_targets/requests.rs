@@ -58,7 +58,9 @@ fn check_request(body: &[u8]) {
             assert!(r["caution"].is_string());
             assert!(r["path"].is_null() || r["path"].is_string());
             let req: Value = serde_json::from_slice(body).expect("an answered request is JSON");
-            let text = req["text"].as_str().expect("an answered request has a text");
+            let text = req["text"]
+                .as_str()
+                .expect("an answered request has a text");
             check_spans(&r, text);
             serde_json::to_string(&r).expect("the response serialises");
         }
@@ -292,7 +294,11 @@ fn structured(data: &[u8], v: &Value) {
     let body = json!({"text": text, "path": "fuzz.txt",
                       "config": {"date_order": date_order, "unit_system": unit_system}});
     check_request(body.to_string().as_bytes());
-    check_request(json!({"text": "Wt 82.4\nBP 98/60", "config": v}).to_string().as_bytes());
+    check_request(
+        json!({"text": "Wt 82.4\nBP 98/60", "config": v})
+            .to_string()
+            .as_bytes(),
+    );
 
     // A whole LSP session with the text as the note.
     let mut s = Session::new();
@@ -327,16 +333,31 @@ fn structured(data: &[u8], v: &Value) {
             id += 1;
             let params = json!({"textDocument": doc,
                                 "position": {"line": p.0, "character": p.1}});
-            exchange(s, request(id, "textDocument/hover", params), mirror, version);
+            exchange(
+                s,
+                request(id, "textDocument/hover", params),
+                mirror,
+                version,
+            );
         }
         id += 1;
         let params = json!({"textDocument": doc});
-        exchange(s, request(id, "textDocument/documentSymbol", params), mirror, version);
+        exchange(
+            s,
+            request(id, "textDocument/documentSymbol", params),
+            mirror,
+            version,
+        );
         let (whole, _, _) = range(mirror, ps[0], *ps.last().unwrap());
         id += 1;
         let params = json!({"textDocument": doc, "range": whole,
                             "context": {"diagnostics": []}});
-        exchange(s, request(id, "textDocument/codeAction", params), mirror, version);
+        exchange(
+            s,
+            request(id, "textDocument/codeAction", params),
+            mirror,
+            version,
+        );
     };
     queries(&mut s, &mirror, 1);
 
@@ -352,7 +373,12 @@ fn structured(data: &[u8], v: &Value) {
         version += 1;
         let params = json!({"textDocument": {"uri": URI, "version": version},
                             "contentChanges": [{"range": r, "text": insert}]});
-        exchange(&mut s, note("textDocument/didChange", params), &mirror, version);
+        exchange(
+            &mut s,
+            note("textDocument/didChange", params),
+            &mirror,
+            version,
+        );
     }
     queries(&mut s, &mirror, version);
 
@@ -361,12 +387,27 @@ fn structured(data: &[u8], v: &Value) {
     version += 1;
     let params = json!({"textDocument": {"uri": URI, "version": version},
                         "contentChanges": [{"text": mirror}]});
-    exchange(&mut s, note("textDocument/didChange", params), &mirror, version);
+    exchange(
+        &mut s,
+        note("textDocument/didChange", params),
+        &mirror,
+        version,
+    );
     mirror.push_str("\nWt 79.8 kg, JVP not seen");
     let params = json!({"textDocument": {"uri": URI}, "text": mirror});
-    exchange(&mut s, note("textDocument/didSave", params), &mirror, version);
+    exchange(
+        &mut s,
+        note("textDocument/didSave", params),
+        &mirror,
+        version,
+    );
     let params = json!({"settings": {"tidemark": {"unit_system": "us", "date_order": "mdy"}}});
-    exchange(&mut s, note("workspace/didChangeConfiguration", params), &mirror, version);
+    exchange(
+        &mut s,
+        note("workspace/didChangeConfiguration", params),
+        &mirror,
+        version,
+    );
     queries(&mut s, &mirror, version);
     let params = json!({"textDocument": {"uri": URI}});
     exchange(&mut s, note("textDocument/didClose", params), "", version);
