@@ -88,42 +88,38 @@ pub fn capabilities() -> ServerCapabilities {
     }
 }
 
-/// Serve one connection until `shutdown` and `exit`, or until the client goes away.
-pub fn serve(connection: &Connection) -> Result<(), String> {
-    let (id, params) = connection.initialize_start().map_err(|e| e.to_string())?;
-    let init: InitializeParams = serde_json::from_value(params).unwrap_or_default();
-    let mut server = Server::from_init(&init);
-    let result = serde_json::json!({
+/// The `initialize` response: capabilities and server info.
+pub fn initialize_result() -> Value {
+    serde_json::json!({
         "capabilities": capabilities(),
         "serverInfo": {"name": "tidemark", "version": env!("CARGO_PKG_VERSION")},
-    });
+    })
+}
+
+/// Serve one connection until `shutdown` and `exit`, or until the client goes away.
+///
+/// The handshake (`initialize`/`initialized`, `shutdown`/`exit`) is the connection's; every
+/// message in between goes through [`Server::handle`], which needs no connection.
+pub fn serve(connection: &Connection) -> Result<(), String> {
+    let (id, params) = connection.initialize_start().map_err(|e| e.to_string())?;
+    let mut server = Server::from_init_params(params);
     connection
-        .initialize_finish(id, result)
+        .initialize_finish(id, initialize_result())
         .map_err(|e| e.to_string())?;
-    for message in std::mem::take(&mut server.pending_logs) {
-        log(connection, MessageType::WARNING, message);
+    for msg in server.startup_messages() {
+        send(connection, msg);
     }
     for msg in &connection.receiver {
-        match msg {
-            Message::Request(req) => {
-                if connection
-                    .handle_shutdown(&req)
-                    .map_err(|e| e.to_string())?
-                {
-                    return Ok(());
-                }
-                let resp = server.request(req);
-                send(connection, Message::Response(resp));
-            }
-            Message::Notification(n) => {
-                if n.method == "exit" {
-                    return Ok(());
-                }
-                for out in server.notification(n) {
-                    send(connection, Message::Notification(out));
-                }
-            }
-            Message::Response(_) => {}
+        let done = match &msg {
+            Message::Request(req) => connection.handle_shutdown(req).map_err(|e| e.to_string())?,
+            Message::Notification(n) => n.method == "exit",
+            Message::Response(_) => false,
+        };
+        if done {
+            return Ok(());
+        }
+        for out in server.handle(msg) {
+            send(connection, out);
         }
     }
     Ok(())
@@ -135,12 +131,9 @@ fn send(connection: &Connection, msg: Message) {
     }
 }
 
-fn log(connection: &Connection, typ: MessageType, message: String) {
+fn log_message(typ: MessageType, message: String) -> Message {
     let params = LogMessageParams { typ, message };
-    send(
-        connection,
-        Message::Notification(Notification::new(LogMessage::METHOD.into(), params)),
-    );
+    Message::Notification(Notification::new(LogMessage::METHOD.into(), params))
 }
 
 /// Server state: open documents and configuration.
@@ -155,6 +148,36 @@ pub struct Server {
 }
 
 impl Server {
+    /// Configure from the `initialize` request's parameters; parameters that do not parse
+    /// count as empty ones.
+    pub fn from_init_params(params: Value) -> Server {
+        let init: InitializeParams = serde_json::from_value(params).unwrap_or_default();
+        Server::from_init(&init)
+    }
+
+    /// The messages to send once initialised: warnings about the configuration.
+    pub fn startup_messages(&mut self) -> Vec<Message> {
+        std::mem::take(&mut self.pending_logs)
+            .into_iter()
+            .map(|m| log_message(MessageType::WARNING, m))
+            .collect()
+    }
+
+    /// Handle one message received after the handshake; returns the messages to send back.
+    /// A request gets exactly one response; a notification gets zero or more notifications;
+    /// a response from the client is ignored.
+    pub fn handle(&mut self, msg: Message) -> Vec<Message> {
+        match msg {
+            Message::Request(req) => vec![Message::Response(self.request(req))],
+            Message::Notification(n) => self
+                .notification(n)
+                .into_iter()
+                .map(Message::Notification)
+                .collect(),
+            Message::Response(_) => Vec::new(),
+        }
+    }
+
     /// Configure from the `initialize` request.
     pub fn from_init(init: &InitializeParams) -> Server {
         let mut server = Server::default();
@@ -503,6 +526,44 @@ mod tests {
         );
         assert!(s.notification(bad).is_empty());
         assert_eq!(s.config.extract.unit_system, crate::config::UnitSystem::Us);
+    }
+
+    #[test]
+    fn handle_answers_each_request_once_without_a_connection() {
+        let mut s = Server::from_init_params(
+            json!({"capabilities": {}, "initializationOptions": {"colour": 1}}),
+        );
+        let logs = s.startup_messages();
+        assert_eq!(logs.len(), 1);
+        assert!(s.startup_messages().is_empty());
+        let open = Message::Notification(Notification::new(
+            DidOpenTextDocument::METHOD.into(),
+            json!({"textDocument": {"uri": "file:///a.txt", "languageId": "plaintext",
+                                    "version": 3, "text": "Wt 82.4"}}),
+        ));
+        let out = s.handle(open);
+        assert_eq!(out.len(), 1);
+        let Message::Notification(n) = &out[0] else {
+            panic!("notification expected")
+        };
+        assert_eq!(n.method, PublishDiagnostics::METHOD);
+        assert_eq!(n.params["version"], 3);
+        let hover = Message::Request(Request::new(
+            7.into(),
+            HoverRequest::METHOD.into(),
+            json!({"textDocument": {"uri": "file:///a.txt"}, "position": "nowhere"}),
+        ));
+        let out = s.handle(hover);
+        let [Message::Response(r)] = &out[..] else {
+            panic!("one response expected")
+        };
+        assert_eq!(r.id, 7.into());
+        assert_eq!(
+            r.response_result.as_ref().unwrap_err().code,
+            ErrorCode::InvalidParams as i32
+        );
+        let from_client = Message::Response(Response::new_ok(1.into(), Value::Null));
+        assert!(s.handle(from_client).is_empty());
     }
 
     /// A whole session over an in-memory connection: initialize, open, change, hover,
