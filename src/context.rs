@@ -24,6 +24,10 @@ use crate::model::{Assertion, Context, Cue, Experiencer, Section, SectionKind, T
 use crate::span::LineIndex;
 use crate::text::segment::Sentences;
 
+use std::sync::OnceLock;
+
+use regex::Regex;
+
 /// What kind of item the context is for: cues apply differently to each.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Target {
@@ -61,6 +65,8 @@ pub struct ContextEngine<'a> {
     currents: Vec<(usize, usize)>,
     /// Starts of reporter cues ("wife reports").
     reporters: Vec<(usize, usize)>,
+    /// `in 2019`, `in March 2019`: a year that places a finding or value in the past.
+    years: Vec<(usize, usize)>,
     /// Byte offsets of brackets.
     brackets: Vec<usize>,
     /// Spans of all findings and statements, sorted, for list handling and nearest-target
@@ -78,6 +84,33 @@ const NEAREST: usize = 3;
 /// The longest gap, in bytes, that word counting walks; beyond it the gap is too wide for
 /// any word-limited cue (NegEx's window is five words).
 const MAX_WORD_GAP: usize = 600;
+
+/// `in 2019`, `in Mar 2019`: a year written as a time (04 §4.3 lists "in 2019" among the
+/// historical cues), not `in 2000 mL`.
+fn year_cues(text: &str) -> Vec<(usize, usize)> {
+    static RE: OnceLock<Regex> = OnceLock::new();
+    let re = RE.get_or_init(|| {
+        Regex::new(r"(?i)(?-u:\b)in\s+(?:(?:jan|feb|mar|apr|may|jun|jul|aug|sep|oct|nov|dec)[a-z]*\.?\s+)?(?:19[5-9][0-9]|20[0-9][0-9])(?-u:\b)")
+            .expect("valid regex")
+    });
+    const UNITS: &[&str] = &[
+        "ml", "mls", "l", "cc", "mg", "mcg", "kg", "g", "units", "iu", "litres", "liters",
+    ];
+    re.find_iter(text)
+        .filter(|m| {
+            let rest = text[m.end()..].trim_start();
+            let word = rest
+                .split(|c: char| !c.is_ascii_alphabetic())
+                .next()
+                .unwrap_or("")
+                .to_ascii_lowercase();
+            // Not a date (`in 2019/20`) or an amount (`in 2000 mL`).
+            !rest.starts_with(|c: char| c.is_ascii_digit() || c == '/')
+                && !UNITS.contains(&word.as_str())
+        })
+        .map(|m| (m.start(), m.end()))
+        .collect()
+}
 
 fn any_in(sorted: &[(usize, usize)], a: usize, b: usize) -> bool {
     let i = sorted.partition_point(|&(s, _)| s < a);
@@ -169,6 +202,7 @@ impl<'a> ContextEngine<'a> {
             terminators,
             currents,
             reporters,
+            years: year_cues(text),
             brackets,
             targets,
         }
@@ -335,6 +369,11 @@ impl<'a> ContextEngine<'a> {
                 _ => {}
             }
         }
+        // A past year near a finding or value ("ascites in 2019", "in 2021 EF was 30%");
+        // a diagnosis named with its year is still the patient's diagnosis.
+        if historical.is_none() && target != Target::Statement {
+            historical = self.year_near(start, end, &sentence);
+        }
         // A reporter after the other person ("wife reports ...") keeps the patient.
         if let Some(o) = other {
             if reporter_between || self.reporter_after(o.end, start) {
@@ -394,6 +433,35 @@ impl<'a> ContextEngine<'a> {
             });
         }
         ctx
+    }
+
+    fn year_near(
+        &self,
+        start: usize,
+        end: usize,
+        sentence: &std::ops::Range<usize>,
+    ) -> Option<CueHit> {
+        let as_cue = |&(s, e): &(usize, usize)| CueHit {
+            start: s,
+            end: e,
+            family: Some(Family::Historical),
+            dir: Direction::Both,
+        };
+        let i = self.years.partition_point(|&(_, e)| e <= start);
+        let before = self.years[..i].last().filter(|&&(s, e)| {
+            s >= sentence.start
+                && !self.brackets_between(e, start)
+                && !self.terminated(e, start, Family::Historical)
+                && self.words(e, start, 6) <= 5
+        });
+        let j = self.years.partition_point(|&(s, _)| s < end);
+        let after = self.years.get(j).filter(|&&(s, _)| {
+            s < sentence.end
+                && !self.terminated(end, s, Family::Historical)
+                && self.words(end, s, 5) <= 4
+                && self.nearest_target_before(s, end)
+        });
+        after.or(before).map(as_cue)
     }
 
     fn reporter_after(&self, a: usize, b: usize) -> bool {

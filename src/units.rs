@@ -34,15 +34,21 @@ pub fn ucum(written: &str) -> Option<&'static str> {
         .collect::<String>()
         .to_ascii_lowercase()
         .replace(['µ', 'μ'], "u")
+        // `percent` and `per cent` are a sign of their own, not "per" something, and
+        // `fahrenheit` holds no "hr" (hour).
+        .replace("percent", "%")
+        .replace("fahrenheit", "degf")
         .replace("per", "/")
+        .replace("minute", "min")
         .replace("hour", "h")
         .replace("hr", "h");
     let code = match w.as_str() {
         "mmhg" => "mm[Hg]",
         "bpm" | "/min" | "/m" | "beats/min" | "breaths/min" | "b/min" | "min" => "/min",
         "%" | "pc" | "percent" | "pct" => "%",
-        "°c" | "ºc" | "c" | "degc" | "deg.c" | "degreesc" | "centigrade" | "celsius" => "Cel",
-        "°f" | "ºf" | "f" | "degf" | "deg.f" | "degreesf" | "fahrenheit" => "[degF]",
+        "°c" | "ºc" | "c" | "degc" | "deg.c" | "degreesc" | "centigrade" | "celsius"
+        | "degreescelsius" | "degreescentigrade" => "Cel",
+        "°f" | "ºf" | "f" | "degf" | "deg.f" | "degreesf" | "degreesdegf" => "[degF]",
         "°" | "º" => "deg",
         "kg" | "kgs" | "kilo" | "kilos" | "kilogram" | "kilograms" => "kg",
         "lb" | "lbs" | "pound" | "pounds" | "#" => "[lb_av]",

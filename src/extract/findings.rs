@@ -60,8 +60,30 @@ fn edema_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
         &LEVEL,
         r"(?i)(?-u:\b)(?:to|up to|extending to|reaching)\s+(?:the\s+)?(mid[- ]?shins?|mid[- ]?calf|mid[- ]?calves|mid[- ]?thighs?|ankles?|shins?|calf|calves|knees?|thighs?|groin|hips?|sacrum|abdomen|waist|abdominal wall)(?-u:\b)|(?-u:\b)(sacral|ankle|pedal|shin|knee|thigh)(?-u:\b)",
     );
+    // Grade words (03 §3.3: trace/minimal, mild, moderate, severe/gross), written right
+    // before the term ("mild pitting oedema", "moderate bilateral ankle oedema") or right
+    // after it as a slot ("Oedema: moderate").
+    static WORD_BEFORE: OnceLock<Regex> = OnceLock::new();
+    static WORD_AFTER: OnceLock<Regex> = OnceLock::new();
+    let word_before = re(
+        &WORD_BEFORE,
+        r"(?i)(?-u:\b)(trace|minimal|mild|moderate|severe|gross|massive)(?:\s+(?:pitting|bilateral|bilat|peripheral|ankle|leg|pedal|lower limb|lower leg|dependent))*\s*$",
+    );
+    let word_after = re(
+        &WORD_AFTER,
+        r"(?i)^\s*(?:[:=–-]\s*)?(trace|minimal|mild|moderate|severe|gross|massive)(?-u:\b)",
+    );
     let before = clause_before(doc, start, 30);
     let after = clause_after(doc, end, 60);
+    let worded = word_before
+        .captures(before)
+        .or_else(|| word_after.captures(after))
+        .map(|c| match c[1].to_ascii_lowercase().as_str() {
+            "trace" | "minimal" => 0.5,
+            "mild" => 1.0,
+            "moderate" => 2.0,
+            _ => 4.0,
+        });
     for s in [before, after] {
         if d.grade.is_none() {
             if let Some(c) = grade.captures(s) {
@@ -74,6 +96,14 @@ fn edema_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
                 };
             }
         }
+    }
+    // Non-pitting swelling is not graded (03 §3.3).
+    let (a, _) = window(doc, start, end, 12, 0);
+    let non_pitting = doc.text[a..end]
+        .to_ascii_lowercase()
+        .contains("non-pitting");
+    if d.grade.is_none() && !non_pitting {
+        d.grade = worded;
     }
     let term = &doc.text[start..end];
     for s in [after, term, before] {
@@ -134,8 +164,16 @@ fn trend_of(doc: &Doc, end: usize) -> Option<String> {
         &TREND,
         r"(?i)(?-u:\b)(improving|improved|resolving|resolved|worse|worsening|better|increasing|increased|decreasing|reduced|less|more|unchanged|persistent|ongoing)(?-u:\b)",
     );
-    t.captures(clause_after(doc, end, 40))
-        .map(|c| c[1].to_ascii_lowercase())
+    let after = clause_after(doc, end, 40);
+    let c = t.captures(after)?;
+    let word = c[1].to_ascii_lowercase();
+    // "not improved", "no better", "not resolving": the change did not happen.
+    let lead = after[..c.get(1).map_or(0, |m| m.start())].to_ascii_lowercase();
+    let lead = lead.trim_end();
+    if lead.ends_with("not") || lead.ends_with("no") || lead.ends_with("nil") {
+        return Some("unchanged".to_string());
+    }
+    Some(word)
 }
 
 /// How many pillows a pillow term counts, and whether the words say "extra".
@@ -208,6 +246,23 @@ pub fn findings(doc: &Doc, out: &mut Output) {
         })
         .collect();
     for &(start, end, mut concept, polarity) in &terms {
+        // A bedside sign of an effusion ("dull to percussion", "reduced air entry") with the
+        // effusion named after it on the line ("- possible effusion") is read from that
+        // name, which carries the writer's certainty.
+        if concept == FindingConcept::PleuralEffusion
+            && !doc.text[start..end]
+                .to_ascii_lowercase()
+                .contains("effusion")
+            && near(&terms, start, end).iter().any(|&(s, e, c, _)| {
+                c == concept
+                    && s >= end
+                    && s - end < 48
+                    && doc.line_at(s) == doc.line_at(start)
+                    && doc.text[s..e].to_ascii_lowercase().contains("effusion")
+            })
+        {
+            continue;
+        }
         let mut detail = FindingDetail::default();
         let present = match polarity {
             Polarity::Unassessable => continue,

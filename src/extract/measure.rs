@@ -153,8 +153,11 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
     let mut out: Vec<Reading> = Vec::new();
     // `FB yesterday -1.3 L`: a time word between the label and the value places the value.
     let mut leading: Option<TimeRef> = None;
+    // `Weight (kg): 84.2`: a unit named once in brackets after the label.
+    let mut head: Option<String> = None;
     for c in p.into_inner() {
         match c.as_rule() {
+            Rule::head_unit if out.is_empty() => head = head_unit_text(c),
             Rule::when if out.is_empty() && !c.as_str().eq_ignore_ascii_case("was") => {
                 leading = time_ref(c.as_str()).or(leading)
             }
@@ -222,6 +225,11 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
             _ => {}
         }
     }
+    if let Some(r) = out.first_mut() {
+        if r.unit_text.is_none() {
+            r.unit_text = head;
+        }
+    }
     // Asides and chains without a unit of their own share the main reading's unit.
     if let Some(unit) = out.first().and_then(|r| r.unit_text.clone()) {
         for r in out.iter_mut().skip(1) {
@@ -231,6 +239,13 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
         }
     }
     out
+}
+
+/// The unit inside a `head_unit` pair (`(kg)`, `(bpm)`).
+fn head_unit_text(p: Pair<Rule>) -> Option<String> {
+    p.into_inner()
+        .find(|u| u.as_rule() == Rule::unit)
+        .map(|u| u.as_str().to_string())
 }
 
 /// An aside item that compares with an earlier value: a number alone (`(148)`) or with a
@@ -538,7 +553,13 @@ fn weak_ok(doc: &Doc, label: Label, r: &Reading) -> bool {
             )
             .expect("valid regex")
         });
-        if re.is_match(after) {
+        // `T 38.2 HR 110`: the capital `HR` is the next label, not "hours".
+        let next_label = after.trim_start().starts_with("HR")
+            && !after
+                .trim_start()
+                .get(2..)
+                .is_some_and(|r| r.starts_with(|c: char| c.is_ascii_alphabetic()));
+        if re.is_match(after) && !next_label {
             return false;
         }
     }
@@ -621,7 +642,12 @@ fn blood_pressure(doc: &Doc, out: &mut Output, start: usize, end: usize) {
         return;
     };
     let mut first = true;
+    let mut head = None;
     for c in p.into_inner() {
+        if c.as_rule() == Rule::head_unit {
+            head = head_unit_text(c);
+            continue;
+        }
         if c.as_rule() != Rule::bp_reading {
             continue;
         }
@@ -665,7 +691,7 @@ fn blood_pressure(doc: &Doc, out: &mut Output, start: usize, end: usize) {
                 qualifier,
                 start: rstart,
                 end: rend,
-                unit_text: unit.clone(),
+                unit_text: unit.clone().or_else(|| head.clone()),
                 time_ref: when,
                 ..Reading::default()
             };
@@ -808,6 +834,14 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
         return;
     }
     let rs = simple_readings(p, end);
+    // `wt ↓ 1.2 kg`, `Weight ↑0.8`: an arrow before a small number is a change, not a
+    // body weight (common practice, no source; 03 §3.1 reads `wt ↓ 1.2` as a decrease).
+    if let Some(first) = rs.first() {
+        let lead = doc.text.get(end..first.start).unwrap_or("");
+        if lead.contains(['↑', '↓']) && first.value < 20.0 {
+            return;
+        }
+    }
     for (i, r) in rs.iter().enumerate() {
         let mut r = r.clone();
         if i == 0 {
@@ -1150,6 +1184,20 @@ fn fluid_balance(doc: &Doc, out: &mut Output, start: usize, end: usize) {
     };
     let pend = end + p.as_span().end();
     let mut sign = 1.0;
+    // `negative balance of 1.5 L`, `positive fluid balance 800 mL`: the sign word may come
+    // before the label.
+    {
+        let line = doc.line_at(start);
+        let before = doc.text[line.start.min(start)..start].trim_end();
+        let last = before
+            .rsplit(|c: char| !c.is_ascii_alphabetic())
+            .next()
+            .unwrap_or("")
+            .to_ascii_lowercase();
+        if matches!(last.as_str(), "negative" | "neg") {
+            sign = -1.0;
+        }
+    }
     let mut even = false;
     for c in p.clone().into_inner() {
         match c.as_rule() {
@@ -1205,16 +1253,26 @@ fn nyha(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
         return;
     };
     let pend = end + p.as_span().end();
-    let classes: Vec<u8> = p
+    let nums: Vec<_> = p
         .into_inner()
         .filter(|c| c.as_rule() == Rule::nyha_num)
-        .filter_map(|c| nyha_class(c.as_str()))
         .collect();
+    let roman = nums
+        .iter()
+        .all(|c| c.as_str().starts_with(['i', 'I', 'v', 'V']));
+    let classes: Vec<u8> = nums.iter().filter_map(|c| nyha_class(c.as_str())).collect();
     let Some(&class) = classes.iter().max() else {
         return;
     };
-    // `class 2` alone is NYHA only where NYHA or heart failure is in the same line.
+    // `class 2` alone is NYHA only where NYHA or heart failure is in the same line, or
+    // where a Roman class is written as `FC III` or `class III symptoms` (03 §3.8).
+    let symptoms = doc
+        .text
+        .get(pend..)
+        .is_some_and(|r| r.trim_start().to_ascii_lowercase().starts_with("symptom"));
+    let fc = &doc.text[start..end] == "FC";
     if label == Label::NyhaWeak
+        && !(roman && (symptoms || fc))
         && !doc.line_mentions(start, 160, &["nyha", "functional", "hf", "heart failure"])
     {
         return;
@@ -1278,9 +1336,11 @@ fn push_finding(
     });
 }
 
-/// Capillary refill: 2 s or more is prolonged, under 2 s is normal (the bedside
+/// Capillary refill: more than 2 s is prolonged, 2 s or less is normal (the bedside
 /// threshold used for the cold profile: Nohria, Stevenson et al. 2003 use "cool
-/// extremities"; the 2-second refill threshold is common practice, no source).
+/// extremities"; the 2-second refill threshold is common practice, no source; the domain
+/// reference, 03 §3.5, lists "CRT 2 secs" among the warm forms and "CRT 4 s",
+/// "cap refill > 3 s" among the cold ones).
 fn capillary_refill(doc: &Doc, out: &mut Output, start: usize, end: usize) {
     let Some(p) = parse_at(doc, Rule::crt_value, end) else {
         return;
@@ -1326,7 +1386,7 @@ fn capillary_refill(doc: &Doc, out: &mut Output, start: usize, end: usize) {
             let prolonged = match q {
                 Some(Qualifier::UpperBound) => false,
                 Some(Qualifier::LowerBound) => v >= 2.0,
-                _ => v >= 2.0,
+                _ => v > 2.0,
             };
             // `CRT 2 s` exactly, or `<3 s`: read as written.
             let prolonged = prolonged && !(q == Some(Qualifier::UpperBound));

@@ -1,0 +1,462 @@
+//! The phrasing variety of the field: one invented sentence per row, with the concept,
+//! value, unit and assertion a reader of the note would take from it. Each row names the
+//! section of the domain reference (`/work/shared/domain/`, files 02-11) that lists the
+//! phrasing, or says "common practice, no source" for forms seen on wards but not listed
+//! there. Every sentence is invented; every row checks a value the extraction can get wrong.
+
+use tidemark::config::ExtractOptions;
+use tidemark::extract::extract;
+use tidemark::model::{
+    Assertion, Experiencer, Extraction, FindingConcept, MeasureConcept, StatementKind, Temporality,
+};
+
+use Assertion::{Absent, Possible, Present};
+use Experiencer::{Other, Patient};
+use FindingConcept as F;
+use MeasureConcept as M;
+use Temporality::{Current, Historical};
+
+fn ex(text: &str) -> Extraction {
+    extract(text, &ExtractOptions::default())
+}
+
+/// A measurement row: the value as written, its UCUM unit, and whether the unit was
+/// written (false) or inferred (true).
+struct Meas {
+    text: &'static str,
+    concept: MeasureConcept,
+    value: f64,
+    unit: &'static str,
+    inferred: bool,
+    temporality: Temporality,
+}
+
+const fn m(
+    text: &'static str,
+    concept: MeasureConcept,
+    value: f64,
+    unit: &'static str,
+    inferred: bool,
+) -> Meas {
+    Meas {
+        text,
+        concept,
+        value,
+        unit,
+        inferred,
+        temporality: Current,
+    }
+}
+
+const MEASUREMENTS: &[Meas] = &[
+    // 03 §3.1: no space between label and value.
+    m("BP98/60, HR112", M::SystolicBp, 98.0, "mm[Hg]", true),
+    m("wt84.2kg this morning", M::Weight, 84.2, "kg", false),
+    // 03 §3.1: decimal comma.
+    m("temp 37,8 °C", M::Temperature, 37.8, "Cel", false),
+    // 03 §3.1: ranges with an en dash give the midpoint (README output contract).
+    m("EF 35–40% on TTE", M::Lvef, 37.5, "%", false),
+    // 03 §3.6: blood pressure as dictated ("142 over 88"); common practice, no source.
+    m(
+        "Blood pressure was 142 over 88.",
+        M::SystolicBp,
+        142.0,
+        "mm[Hg]",
+        true,
+    ),
+    m(
+        "Blood pressure was 142 over 88.",
+        M::DiastolicBp,
+        88.0,
+        "mm[Hg]",
+        true,
+    ),
+    m("BP 120 over 80 mmHg", M::DiastolicBp, 80.0, "mm[Hg]", false),
+    // 03 §3.6: a label followed straight by the next label (`T 38.2 HR 110`) on an obs line.
+    m(
+        "Obs: T 38.2 HR 110 BP 90/60",
+        M::Temperature,
+        38.2,
+        "Cel",
+        true,
+    ),
+    m(
+        "VS: Tmax 38.2 HR 110 BP 90/60 RR 28",
+        M::Temperature,
+        38.2,
+        "Cel",
+        true,
+    ),
+    m(
+        "VS: Tmax 38.2 HR 110 BP 90/60",
+        M::HeartRate,
+        110.0,
+        "/min",
+        true,
+    ),
+    // 03 §3.6: US temperature and rate forms.
+    m("T 99.1F", M::Temperature, 99.1, "[degF]", false),
+    m("RR 22 bpm", M::RespiratoryRate, 22.0, "/min", false),
+    m(
+        "Respirations 20, unlaboured.",
+        M::RespiratoryRate,
+        20.0,
+        "/min",
+        true,
+    ),
+    // 05 §5.0: unit spellings (centigrade, degrees Celsius/Fahrenheit, beats per minute,
+    // mM, percent).
+    m("Temp 37.2 centigrade", M::Temperature, 37.2, "Cel", false),
+    m(
+        "Temperature 36.8 degrees Celsius.",
+        M::Temperature,
+        36.8,
+        "Cel",
+        false,
+    ),
+    m(
+        "Temp 98.6 degrees Fahrenheit.",
+        M::Temperature,
+        98.6,
+        "[degF]",
+        false,
+    ),
+    m(
+        "His pulse was 88 beats per minute.",
+        M::HeartRate,
+        88.0,
+        "/min",
+        false,
+    ),
+    m("Sodium 131 mM", M::Sodium, 131.0, "mmol/L", false),
+    m("EF of 20 percent", M::Lvef, 20.0, "%", false),
+    m("Sats 92 percent on air", M::Spo2, 92.0, "%", false),
+    m("K 4.9 mEq/L", M::Potassium, 4.9, "meq/L", false),
+    m("Cr 1.4 mg%", M::Creatinine, 1.4, "mg/dL", false),
+    m("JVP 12 cmH20", M::Jvp, 12.0, "cm[H2O]", false),
+    // 05 §5.0: `#` after a number is pounds (US).
+    m("Wt 185#", M::Weight, 185.0, "[lb_av]", false),
+    // Common practice, no source: flowsheet columns name the unit once, in brackets.
+    m("Weight (kg): 102.5", M::Weight, 102.5, "kg", false),
+    m("Temp (C): 37.2", M::Temperature, 37.2, "Cel", false),
+    m("HR (bpm): 88", M::HeartRate, 88.0, "/min", false),
+    m("BP (mmHg): 110/70", M::SystolicBp, 110.0, "mm[Hg]", false),
+    // 11 §11.3 and 03 §3.7: balance sign words; "negative balance of 1.5 L" is a net loss.
+    m(
+        "Negative balance of 1.5 L.",
+        M::FluidBalance,
+        -1.5,
+        "L",
+        false,
+    ),
+    m("FB -1.5 L", M::FluidBalance, -1.5, "L", false),
+    m("FB 24 hr -1.2 L", M::FluidBalance, -1.2, "L", false),
+    // 11 §11.3: intake and output written out ("ins 1200 outs 2700"); net = in - out.
+    m(
+        "Ins 1.2 L, outs 2.7 L",
+        M::FluidBalance,
+        -1500.0,
+        "mL",
+        false,
+    ),
+    m(
+        "Strict I/O: in 1.4 L, out 3.1 L.",
+        M::FluidBalance,
+        -1700.0,
+        "mL",
+        false,
+    ),
+    m(
+        "Intake 1400 mL, output 3100 mL.",
+        M::FluidBalance,
+        -1700.0,
+        "mL",
+        false,
+    ),
+    m(
+        "Intake 1400 mL, output 3100 mL.",
+        M::UrineOutput,
+        3100.0,
+        "mL",
+        false,
+    ),
+    // 03 §3.7: urine output rates.
+    m("UOP 40 ml/hr", M::UrineOutput, 40.0, "mL/h", false),
+    // 04 §4.3: "in 2019" is a historical cue.
+    Meas {
+        temporality: Historical,
+        ..m("EF was 30% in 2019.", M::Lvef, 30.0, "%", false)
+    },
+];
+
+#[test]
+fn measurement_phrasings() {
+    let mut failures = Vec::new();
+    for row in MEASUREMENTS {
+        let e = ex(row.text);
+        let got: Vec<_> = e
+            .measurements
+            .iter()
+            .filter(|x| x.concept == row.concept)
+            .map(|x| (x.value, x.unit, x.unit_inferred, x.temporality))
+            .collect();
+        let want = (row.value, Some(row.unit), row.inferred, row.temporality);
+        let ok = got.iter().any(|&(v, u, i, t)| {
+            (v - want.0).abs() < 1e-9 && u == want.1 && i == want.2 && t == want.3
+        });
+        if !ok {
+            failures.push(format!(
+                "{:?}: want {:?} {want:?}, got {got:?}",
+                row.text, row.concept
+            ));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+/// Sentences whose number is not a reading of the concept.
+const NOT_A_READING: &[(&str, MeasureConcept)] = &[
+    // 03 §3.1: `wt ↓ 1.2` is a decrease, not a weight of 1.2 kg.
+    ("wt ↓ 1.2 kg", M::Weight),
+    ("Weight ↓1.3 kg since yesterday", M::Weight),
+    // 03 §3.4: "JVP at 90 degrees" gives the patient's position, not a height of 90 cm.
+    ("JVP at 90 degrees.", M::Jvp),
+    // 11 §11.3: a fluid restriction is an instruction, not an intake or a balance.
+    ("FR 1.5 L/day", M::FluidBalance),
+];
+
+#[test]
+fn numbers_that_are_not_readings() {
+    let mut failures = Vec::new();
+    for &(text, concept) in NOT_A_READING {
+        let got: Vec<_> = ex(text)
+            .measurements
+            .iter()
+            .filter(|x| x.concept == concept)
+            .map(|x| x.value)
+            .collect();
+        if !got.is_empty() {
+            failures.push(format!("{text:?}: {concept:?} read as {got:?}"));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+/// A finding row: the last finding of the concept in the sentence.
+struct Find {
+    text: &'static str,
+    concept: FindingConcept,
+    assertion: Assertion,
+    temporality: Temporality,
+    experiencer: Experiencer,
+    /// The oedema grade, where the sentence gives one (03 §3.3).
+    grade: Option<f64>,
+}
+
+const fn f(text: &'static str, concept: FindingConcept, assertion: Assertion) -> Find {
+    Find {
+        text,
+        concept,
+        assertion,
+        temporality: Current,
+        experiencer: Patient,
+        grade: None,
+    }
+}
+
+const fn g(text: &'static str, grade: f64) -> Find {
+    Find {
+        grade: Some(grade),
+        ..f(text, F::PeripheralEdema, Present)
+    }
+}
+
+const FINDINGS: &[Find] = &[
+    // 03 §3.1: arrows for raised.
+    f("JVP ↑", F::RaisedJvp, Present),
+    f("JVP ↑↑, bibasal creps.", F::RaisedJvp, Present),
+    // 03 §3.4: the JVP seen with the patient sat up at 90 degrees is markedly raised.
+    f("JVP at 90 degrees.", F::RaisedJvp, Present),
+    f("JVD to mid-neck.", F::RaisedJvp, Present),
+    f("JVP: NR", F::RaisedJvp, Absent),
+    f("HJR +ve.", F::HepatojugularReflux, Present),
+    // 03 §3.2: US oedema shorthand and examination templates.
+    f("BLE edema 2+.", F::PeripheralEdema, Present),
+    f("Ext: no c/c/e.", F::PeripheralEdema, Absent),
+    f(
+        "SOA noted by the district nurse.",
+        F::PeripheralEdema,
+        Present,
+    ),
+    f("Lungs: CTAB.", F::Crackles, Absent),
+    f("Bibasilar rales R>L.", F::Crackles, Present),
+    // 03 §3.2: effusion signs at the bedside.
+    f("Reduced air entry R base.", F::PleuralEffusion, Present),
+    f("Decreased BS at R base.", F::PleuralEffusion, Present),
+    f("Dullness R base.", F::PleuralEffusion, Present),
+    f("Abdo: shifting dullness +ve.", F::Ascites, Present),
+    // 03 §3.5: perfusion; a refill of 2 s is normal, 3 s or more prolonged.
+    f("CRT 2 secs.", F::ProlongedCapRefill, Absent),
+    f("Cap refill 3 seconds.", F::ProlongedCapRefill, Present),
+    f("CRT <2s.", F::ProlongedCapRefill, Absent),
+    f("Peripherally shut down.", F::CoolPeripheries, Present),
+    f("WWP.", F::CoolPeripheries, Absent),
+    // 03 §3.5: orientation shorthand.
+    f("A+Ox3", F::AlteredMentation, Absent),
+    f("A&Ox3.", F::AlteredMentation, Absent),
+    f("GCS 14 (E4V4M6).", F::AlteredMentation, Present),
+    // 03 §3.3: grades written as plus signs, numbers and words.
+    g("Oedema ++ to ankles.", 2.0),
+    g("+++ oedema to knees.", 3.0),
+    g("4+ edema to thighs.", 4.0),
+    g("Trace pedal edema.", 0.5),
+    g("Minimal ankle oedema.", 0.5),
+    g("Mild pitting oedema.", 1.0),
+    g("Moderate pitting oedema to knees.", 2.0),
+    g("Severe oedema to thighs.", 4.0),
+    g("Gross oedema to sacrum.", 4.0),
+    g("Oedema: moderate", 2.0),
+    // 04 §4.3 and §4.5: negation, pseudo-negation, uncertainty.
+    f("No change in ankle oedema.", F::PeripheralEdema, Present),
+    f("Denies orthopnoea or PND.", F::Pnd, Absent),
+    f("No wheeze but fine bibasal crackles.", F::Crackles, Present),
+    f("Oedema resolved.", F::PeripheralEdema, Absent),
+    f("Oedema not improved.", F::PeripheralEdema, Present),
+    f("Equivocal crackles.", F::Crackles, Possible),
+    f("R/o effusion.", F::PleuralEffusion, Possible),
+    f("Nil PND, nil orthopnoea.", F::Orthopnea, Absent),
+    f(
+        "ROS negative for chest pain, dyspnea, orthopnea.",
+        F::Orthopnea,
+        Absent,
+    ),
+    // 04 §4.3: historical cues, a past year among them.
+    Find {
+        temporality: Historical,
+        ..f("Ascites in 2019.", F::Ascites, Present)
+    },
+    Find {
+        temporality: Historical,
+        ..f(
+            "In March 2021 he had a pleural effusion.",
+            F::PleuralEffusion,
+            Present,
+        )
+    },
+    Find {
+        temporality: Historical,
+        ..f("h/o pleural effusion.", F::PleuralEffusion, Present)
+    },
+    // 04 §4.3: another person, and a relative who reports (the patient keeps the finding).
+    Find {
+        experiencer: Other,
+        ..f("Her husband has ankle oedema.", F::PeripheralEdema, Present)
+    },
+    f("Collateral history from daughter: PND.", F::Pnd, Present),
+    f(
+        "Per wife, he has been sleeping in a chair.",
+        F::Orthopnea,
+        Present,
+    ),
+    f(
+        "According to his wife he cannot lie flat.",
+        F::Orthopnea,
+        Present,
+    ),
+    f(
+        "Wife reports he has been sleeping in a chair.",
+        F::Orthopnea,
+        Present,
+    ),
+];
+
+#[test]
+fn finding_phrasings() {
+    let mut failures = Vec::new();
+    for row in FINDINGS {
+        let e = ex(row.text);
+        let got = e
+            .findings
+            .iter()
+            .rev()
+            .find(|x| x.concept == row.concept)
+            .map(|x| (x.assertion, x.temporality, x.experiencer, x.detail.grade));
+        let want = (row.assertion, row.temporality, row.experiencer, row.grade);
+        let ok = got.is_some_and(|(a, t, x, gr)| {
+            (a, t, x) == (want.0, want.1, want.2) && (want.3.is_none() || gr == want.3)
+        });
+        if !ok {
+            failures.push(format!(
+                "{:?}: want {:?} {want:?}, got {got:?}",
+                row.text, row.concept
+            ));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn the_trend_of_an_unimproved_finding_is_not_improved() {
+    // 04 §4.4 rule 6: "not improved" is affirmed; its trend is not an improvement.
+    let e = ex("Oedema not improved.");
+    let t = e.findings.first().and_then(|x| x.detail.trend.clone());
+    assert_eq!(t.as_deref(), Some("unchanged"));
+}
+
+#[test]
+fn non_pitting_swelling_is_not_graded() {
+    // 03 §3.3: "non-pitting" is not the same finding; do not grade.
+    let e = ex("Severe non-pitting oedema of the legs.");
+    let grades: Vec<_> = e.findings.iter().map(|x| x.detail.grade).collect();
+    assert_eq!(grades, [None]);
+}
+
+/// Statement rows: kind and value.
+const STATEMENTS: &[(&str, StatementKind, &str)] = &[
+    // 03 §3.10 and 07 §7.4: acuity wording.
+    ("AoC HFrEF.", StatementKind::Acuity, "acute_on_chronic"),
+    ("ADHF.", StatementKind::Acuity, "acute"),
+    (
+        "Worsening heart failure.",
+        StatementKind::Acuity,
+        "decompensated",
+    ),
+    ("CHF exacerbation.", StatementKind::Acuity, "decompensated"),
+    ("New-onset HF.", StatementKind::Acuity, "acute"),
+    // 07 §7.1: older labels kept as synonyms.
+    ("HF with mid-range EF.", StatementKind::HfType, "hfmref"),
+    ("HFnEF.", StatementKind::HfType, "hfpef"),
+    ("HF-REF.", StatementKind::HfType, "hfref"),
+    ("HFrecEF.", StatementKind::HfType, "hfimpef"),
+    // 03 §3.8 and 07 §7.2: NYHA forms.
+    ("FC III.", StatementKind::Nyha, "III"),
+    ("Class III symptoms.", StatementKind::Nyha, "III"),
+    ("NYHA 2/3.", StatementKind::Nyha, "III"),
+    ("NYHA IIIb.", StatementKind::Nyha, "III"),
+];
+
+#[test]
+fn statement_phrasings() {
+    let mut failures = Vec::new();
+    for &(text, kind, value) in STATEMENTS {
+        let e = ex(text);
+        let got: Vec<_> = e
+            .statements
+            .iter()
+            .filter(|s| s.kind == kind)
+            .map(|s| (s.value.as_str(), s.assertion))
+            .collect();
+        if !got.contains(&(value, Present)) {
+            failures.push(format!("{text:?}: want {kind:?} {value}, got {got:?}"));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn class_alone_stays_unread_without_heart_failure_context() {
+    // Common practice, no source: "class II" alone is also a guideline recommendation
+    // class; without NYHA, heart failure or "symptoms" beside it, it is not read.
+    let e = ex("Class II indication for the procedure.");
+    assert!(e.statements.iter().all(|s| s.kind != StatementKind::Nyha));
+}
