@@ -18,6 +18,8 @@ pub mod measure;
 pub mod meds;
 mod numbers;
 
+use std::sync::OnceLock;
+
 use crate::config::{DateOrder, ExtractOptions, UnitSystem};
 use crate::context::ContextEngine;
 use crate::model::{Episode, Extraction, Measurement, Section};
@@ -131,10 +133,27 @@ fn detect_us_units(text: &str, system: UnitSystem) -> bool {
         UnitSystem::Us => return true,
         UnitSystem::Auto => {}
     }
-    let lower = text.to_ascii_lowercase();
-    let count = |pats: &[&str]| -> usize { pats.iter().map(|p| lower.matches(p).count()).sum() };
-    let us = count(&[" lb", "lbs", "°f", "mg/dl", "bun", " deg f", "pounds"]);
-    let si = count(&[" kg", "kg ", "°c", "µmol", "umol", "μmol", " deg c", "g/l"]);
+    // Each cue counts every occurrence (cues may overlap one another, not themselves), in
+    // one case-insensitive pass. The first `US_CUES` cues are US, the rest SI.
+    const US_CUES: usize = 7;
+    static CUES: OnceLock<aho_corasick::AhoCorasick> = OnceLock::new();
+    let ac = CUES.get_or_init(|| {
+        aho_corasick::AhoCorasick::builder()
+            .ascii_case_insensitive(true)
+            .build([
+                " lb", "lbs", "°f", "mg/dl", "bun", " deg f", "pounds", // US
+                " kg", "kg ", "°c", "µmol", "umol", "μmol", " deg c", "g/l", // SI
+            ])
+            .expect("unit cues form a valid automaton")
+    });
+    let (mut us, mut si) = (0usize, 0usize);
+    for m in ac.find_overlapping_iter(text) {
+        if m.pattern().as_usize() < US_CUES {
+            us += 1;
+        } else {
+            si += 1;
+        }
+    }
     us > si
 }
 
@@ -166,11 +185,9 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
     let hits = lexicon::scan(&flat);
     let us_units = detect_us_units(text, opts.unit_system);
     let order = dates::resolve_order(text, opts.date_order, us_units);
-    let default_year = dates::find_dates(text, order, None)
-        .first()
-        .and_then(|d| d.iso.get(..4))
-        .and_then(|y| y.parse().ok());
-    let found_dates = dates::find_dates(text, order, default_year);
+    let scan = dates::scan_dates(text, order);
+    let default_year = scan.first_year();
+    let found_dates = scan.with_year(default_year);
     let episodes = episodes::find(text, &index, &found_dates);
     let engine = ContextEngine::new(text, &index, &sentences, &sections, &hits);
     let doc = Doc {

@@ -110,7 +110,48 @@ pub fn resolve_order(text: &str, configured: DateOrder, us_units: bool) -> DateO
 /// All full dates in `text` (numeric ones need a year unless `allow_no_year`, in which
 /// case `default_year` fills it in).
 pub fn find_dates(text: &str, order: DateOrder, default_year: Option<i32>) -> Vec<FoundDate> {
+    scan_dates(text, order).with_year(default_year)
+}
+
+/// The dates of a text in one scan: those with a year, and the two-part numeric ones
+/// (`14/03`) that need a default year, so that a caller can take the default year from the
+/// first full date without scanning twice.
+#[derive(Debug, Default)]
+pub struct DateScan {
+    /// Dates with a year, sorted by start.
+    full: Vec<FoundDate>,
+    /// `(start, end, day, month)` of each two-part date, in text order.
+    yearless: Vec<(usize, usize, u32, u32)>,
+}
+
+impl DateScan {
+    /// The year of the first full date.
+    pub fn first_year(&self) -> Option<i32> {
+        self.full
+            .first()
+            .and_then(|d| d.iso.get(..4))
+            .and_then(|y| y.parse().ok())
+    }
+
+    /// All dates, the two-part ones given `default_year` (left out without one), by start.
+    pub fn with_year(self, default_year: Option<i32>) -> Vec<FoundDate> {
+        let mut out = self.full;
+        if let Some(year) = default_year {
+            for (start, end, d, mo) in self.yearless {
+                if let Some(iso) = iso(year, mo, d) {
+                    out.push(FoundDate { start, end, iso });
+                }
+            }
+            out.sort_by_key(|d| d.start);
+        }
+        out
+    }
+}
+
+/// Scan `text` once for dates (see [`DateScan`]).
+pub fn scan_dates(text: &str, order: DateOrder) -> DateScan {
     let mut out = Vec::new();
+    let mut yearless = Vec::new();
     for c in iso_re().captures_iter(text) {
         let m = c.get(0).expect("match");
         let (y, mo, d) = (
@@ -167,6 +208,12 @@ pub fn find_dates(text: &str, order: DateOrder, default_year: Option<i32>) -> Ve
         }
         // Two-part dates (14/03) only where the caller allows an implied year, and never
         // with a decimal point (1.2 is a number).
+        let a: u32 = c[1].parse().unwrap_or(0);
+        let b: u32 = c[3].parse().unwrap_or(0);
+        let (d, mo) = match order {
+            DateOrder::Mdy => (b, a),
+            _ => (a, b),
+        };
         let year = match c.get(4) {
             Some(y) => {
                 let y: i32 = y.as_str().parse().unwrap_or(0);
@@ -176,16 +223,12 @@ pub fn find_dates(text: &str, order: DateOrder, default_year: Option<i32>) -> Ve
                     y
                 }
             }
-            None => match default_year {
-                Some(y) if &c[2] == "/" => y,
-                _ => continue,
-            },
-        };
-        let a: u32 = c[1].parse().unwrap_or(0);
-        let b: u32 = c[3].parse().unwrap_or(0);
-        let (d, mo) = match order {
-            DateOrder::Mdy => (b, a),
-            _ => (a, b),
+            None => {
+                if &c[2] == "/" {
+                    yearless.push((m.start(), m.end(), d, mo));
+                }
+                continue;
+            }
         };
         if let Some(iso) = iso(year, mo, d) {
             out.push(FoundDate {
@@ -196,7 +239,10 @@ pub fn find_dates(text: &str, order: DateOrder, default_year: Option<i32>) -> Ve
         }
     }
     out.sort_by_key(|d| d.start);
-    out
+    DateScan {
+        full: out,
+        yearless,
+    }
 }
 
 /// The first clock time (`08:45`, `21.10`) in `text`, as `HH:MM`.
