@@ -156,18 +156,19 @@ pub fn lookup(written: &str) -> Option<(Option<&'static str>, DrugClass)> {
 pub fn medications(text: &str, sections: &[Section]) -> Vec<Medication> {
     let index = LineIndex::new(text);
     let hits = find_hits(text);
+    let clauses = Clauses::new(text);
     let mut mentions: Vec<Mention> = Vec::with_capacity(hits.len());
     for (i, hit) in hits.iter().enumerate() {
         let line = index.line_range(index.line_of(hit.start));
-        let clause_start = clause_start(text, line.start, hit.start);
-        let clause_end = clause_end(text, hit.end, line.end);
+        let clause_start = clauses.start(line.start, hit.start);
+        let clause_end = clauses.end(hit.end, line.end);
         // The text between the previous hit and this one, when both share a clause, is split
         // at its last separator: before it is the previous tail, after it this head.
         // A first mention's head reaches back to the last comma at most: "cont IV, U&E AM,
         // add metolazone" gives metolazone only "add".
-        let mut head_start = text[clause_start..hit.start]
-            .rfind(',')
-            .map(|p| clause_start + p + 1)
+        let mut head_start = clauses
+            .last_comma(clause_start, hit.start)
+            .map(|p| p + 1)
             .unwrap_or(clause_start);
         let mut join = Join::None;
         if let Some(prev) = i.checked_sub(1).map(|p| &hits[p]) {
@@ -373,42 +374,105 @@ fn is_boundary_at(text: &str, i: usize) -> bool {
 
 const TERMINATORS: &[&str] = &[" but ", " however ", " although ", " though "];
 
-fn clause_start(text: &str, line_start: usize, at: usize) -> usize {
-    let seg = &text[line_start..at];
-    let mut start = line_start;
-    for (i, _) in seg.char_indices() {
-        if is_boundary_at(text, line_start + i) {
-            start = line_start + i + 1;
-        }
-    }
-    let lower = seg.to_ascii_lowercase();
-    for t in TERMINATORS {
-        if let Some(p) = lower.rfind(t) {
-            start = start.max(line_start + p + t.len());
-        }
-    }
-    start
+/// Where clauses break in a document, found once: boundary characters (`;`, `|`, a full
+/// stop), terminator words (`but`, `however`...) and commas, each sorted by offset. The
+/// clause around a mention is then found by binary search, so a long line with many
+/// mentions costs no more than a short one per mention.
+struct Clauses {
+    bounds: Vec<usize>,
+    /// `(start, end)` of each terminator occurrence, by start (occurrences may overlap).
+    terms: Vec<(usize, usize)>,
+    commas: Vec<usize>,
 }
 
-fn clause_end(text: &str, from: usize, line_end: usize) -> usize {
-    if from >= line_end {
-        return line_end.max(from);
-    }
-    let seg = &text[from..line_end];
-    let mut end = line_end;
-    for (i, _) in seg.char_indices() {
-        if is_boundary_at(text, from + i) {
-            end = from + i;
-            break;
+impl Clauses {
+    fn new(text: &str) -> Clauses {
+        static AC: std::sync::OnceLock<aho_corasick::AhoCorasick> = std::sync::OnceLock::new();
+        let ac = AC.get_or_init(|| {
+            aho_corasick::AhoCorasick::builder()
+                .ascii_case_insensitive(true)
+                .build(TERMINATORS)
+                .expect("terminators form a valid automaton")
+        });
+        let bytes = text.as_bytes();
+        let bounds = memchr::memchr3_iter(b';', b'|', b'.', bytes)
+            .filter(|&i| is_boundary_at(text, i))
+            .collect();
+        let mut terms: Vec<(usize, usize)> = ac
+            .find_overlapping_iter(text)
+            .map(|m| (m.start(), m.end()))
+            .collect();
+        terms.sort_unstable();
+        let commas = memchr::memchr_iter(b',', bytes).collect();
+        Clauses {
+            bounds,
+            terms,
+            commas,
         }
     }
-    let lower = text[from..end].to_ascii_lowercase();
-    for t in TERMINATORS {
-        if let Some(p) = lower.find(t) {
-            end = end.min(from + p);
+
+    /// The start of the clause holding `at` on the line starting at `line_start`: after
+    /// the last boundary or terminator before it.
+    fn start(&self, line_start: usize, at: usize) -> usize {
+        let mut start = line_start;
+        let i = self.bounds.partition_point(|&b| b < at);
+        if let Some(&b) = i.checked_sub(1).map(|i| &self.bounds[i]) {
+            if b >= line_start {
+                start = b + 1;
+            }
         }
+        // The latest end of a terminator that lies inside `line_start..at`. Terminators
+        // do not contain one another, so going back from `at`, once one fits no earlier
+        // one can end later than `longest` bytes past its own start.
+        let longest = TERMINATORS.iter().map(|t| t.len()).max().unwrap_or(0);
+        let mut best: Option<usize> = None;
+        let mut j = self.terms.partition_point(|&(s, _)| s < at);
+        while j > 0 {
+            j -= 1;
+            let (s, e) = self.terms[j];
+            if s < line_start || best.is_some_and(|b| s + longest <= b) {
+                break;
+            }
+            if e <= at {
+                best = Some(best.map_or(e, |b| b.max(e)));
+            }
+        }
+        best.map_or(start, |b| start.max(b))
     }
-    end
+
+    /// The end of the clause starting at `from` on a line ending at `line_end`: the first
+    /// boundary or terminator after it.
+    fn end(&self, from: usize, line_end: usize) -> usize {
+        if from >= line_end {
+            return line_end.max(from);
+        }
+        let mut end = line_end;
+        let i = self.bounds.partition_point(|&b| b < from);
+        if let Some(&b) = self.bounds.get(i) {
+            if b < line_end {
+                end = b;
+            }
+        }
+        let mut j = self.terms.partition_point(|&(s, _)| s < from);
+        while let Some(&(s, e)) = self.terms.get(j) {
+            if s >= end {
+                break;
+            }
+            if e <= end {
+                return s;
+            }
+            j += 1;
+        }
+        end
+    }
+
+    /// The last comma in `from..to`.
+    fn last_comma(&self, from: usize, to: usize) -> Option<usize> {
+        let i = self.commas.partition_point(|&c| c < to);
+        i.checked_sub(1)
+            .map(|i| self.commas[i])
+            .filter(|&c| c >= from)
+    }
 }
 
 /// The last separator in the text between two drug names: (start, end, kind).
