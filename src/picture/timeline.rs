@@ -50,6 +50,11 @@ pub struct Timeline<'a> {
     /// Per unit: the byte offset of the last non-admission examination section, when the
     /// unit is split.
     split: Vec<Option<usize>>,
+    /// Episodes sorted by start and disjoint (as extraction makes them): found by binary
+    /// search. Otherwise (a hand-built model) by a scan.
+    episodes_ordered: bool,
+    /// Sections sorted by start and disjoint: likewise.
+    sections_ordered: bool,
 }
 
 /// Whether a section title says admission (or arrival, presentation).
@@ -90,11 +95,21 @@ impl<'a> Timeline<'a> {
             episode_unit[i] = rank + 1;
         }
         let first_episode_start = ex.episodes.iter().map(|e| e.span.start).min();
+        let episodes_ordered = ex
+            .episodes
+            .windows(2)
+            .all(|w| w[0].span.start <= w[0].span.end && w[0].span.end <= w[1].span.start);
+        let sections_ordered = ex
+            .sections
+            .windows(2)
+            .all(|w| w[0].span.start < w[1].span.start && w[0].span.end <= w[1].span.start);
         let mut tl = Timeline {
             ex,
             episode_unit,
             first_episode_start,
             split: vec![None; n + 1],
+            episodes_ordered,
+            sections_ordered,
         };
         tl.split = tl.compute_splits();
         tl
@@ -152,6 +167,12 @@ impl<'a> Timeline<'a> {
             return 0;
         }
         let eps = &self.ex.episodes;
+        if self.episodes_ordered {
+            // Disjoint and sorted: the last episode starting at or before the item is the
+            // one holding it, or else the nearest before it.
+            let i = eps.partition_point(|e| e.span.start <= start);
+            return i.checked_sub(1).map(|i| self.episode_unit[i]).unwrap_or(0);
+        }
         if let Some(i) =
             (0..eps.len()).find(|&i| eps[i].span.start <= start && start < eps[i].span.end)
         {
@@ -173,13 +194,17 @@ impl<'a> Timeline<'a> {
         if let Some(s) = section.and_then(|i| self.ex.sections.get(i)) {
             return Some(s);
         }
-        self.ex
-            .sections
-            .iter()
-            .filter(|s| {
-                s.span.start <= start && start < s.span.end.max(s.span.start.saturating_add(1))
-            })
-            .max_by_key(|s| s.span.start)
+        let holds = |s: &&crate::model::Section| {
+            s.span.start <= start && start < s.span.end.max(s.span.start.saturating_add(1))
+        };
+        let sections = &self.ex.sections;
+        if self.sections_ordered {
+            // Disjoint and sorted: only the last section starting at or before the item
+            // can hold it.
+            let i = sections.partition_point(|s| s.span.start <= start);
+            return i.checked_sub(1).map(|i| &sections[i]).filter(holds);
+        }
+        sections.iter().filter(holds).max_by_key(|s| s.span.start)
     }
 
     /// The assessment block of an item.
