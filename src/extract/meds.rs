@@ -572,6 +572,16 @@ fn word_at(s: &str, start: usize, end: usize) -> Word {
 }
 
 /// A frequency word: (normalised name, administrations per day).
+/// The frequency `word` gives a dose, unless the next word makes it a monitoring plan
+/// ("daily weights", "daily U&E": how often to check, not how often to give).
+fn dosing_frequency(word: &Word, next: Option<&Word>) -> Option<(&'static str, Option<f64>)> {
+    let next = next.map(|n| n.text.trim_end_matches(['.', ',']));
+    if next.is_some_and(|n| MONITORING.contains(&n)) {
+        return None;
+    }
+    frequency_of(&word.text)
+}
+
 fn frequency_of(word: &str) -> Option<(&'static str, Option<f64>)> {
     let w = word.trim_end_matches('.');
     let w = w.as_bytes();
@@ -889,6 +899,38 @@ const NEGATION_TAIL: &[&str] = &[
     "no longer",
 ];
 
+/// Nouns of a monitoring plan, for [`dosing_frequency`] (common practice, no source).
+const MONITORING: &[&str] = &[
+    "weight",
+    "weights",
+    "wt",
+    "wts",
+    "weighing",
+    "bloods",
+    "u&e",
+    "u&es",
+    "ue",
+    "ues",
+    "renal",
+    "electrolytes",
+    "lytes",
+    "bmp",
+    "labs",
+    "obs",
+    "observations",
+    "vitals",
+    "ecg",
+    "review",
+    "fluid",
+    "fluids",
+    "input",
+    "i/o",
+    "balance",
+    "monitoring",
+    "check",
+    "checks",
+];
+
 const HYPOTHETICAL: &[&str] = &[
     "if",
     "consider",
@@ -1080,9 +1122,9 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
                 return Some((idx, (*name).to_string(), *per_day));
             }
         }
-        seg.iter()
-            .enumerate()
-            .find_map(|(i, w)| frequency_of(&w.text).map(|(n, pd)| (i, n.to_string(), pd)))
+        seg.iter().enumerate().find_map(|(i, w)| {
+            dosing_frequency(w, seg.get(i + 1)).map(|(n, pd)| (i, n.to_string(), pd))
+        })
     };
 
     let current_seg = seg_doses.last().map(|(si, _)| *si);
@@ -1221,7 +1263,8 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
         }
     } else {
         // No dose: still read a route and frequency ("furosemide infusion", "bisoprolol od").
-        for w in segments.iter().flatten() {
+        let all: Vec<&Word> = segments.iter().flatten().collect();
+        for (i, w) in all.iter().enumerate() {
             if p.route.is_none() {
                 if let Some(r) = route_of(&w.text) {
                     p.route = Some(r);
@@ -1229,7 +1272,7 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
                 }
             }
             if p.frequency.is_none() {
-                if let Some((n, pd)) = frequency_of(&w.text) {
+                if let Some((n, pd)) = dosing_frequency(w, all.get(i + 1).copied()) {
                     p.frequency = Some(n.into());
                     p.per_day = pd;
                     mark(&mut p, w);
@@ -1564,6 +1607,24 @@ mod tests {
             assert_eq!(m.assertion, Assertion::Present, "{text}");
             assert!(m.dose.is_some(), "{text}");
         }
+    }
+
+    #[test]
+    fn a_monitoring_plan_is_not_a_dosing_frequency() {
+        // "daily weights", "daily U&E" say how often to check (common practice, no source).
+        for text in [
+            "Continue furosemide 40 mg, daily U&E",
+            "IV diuresis, daily weights",
+            "bumetanide 2 mg IV, daily wts and bloods",
+        ] {
+            let m = one(text);
+            assert_eq!(m.frequency, None, "{text}");
+            assert_eq!(m.daily_dose, None, "{text}");
+        }
+        // A frequency followed by other words still counts.
+        let m = one("furosemide 40 mg daily, daily weights");
+        assert_eq!(m.frequency.as_deref(), Some("daily"));
+        assert_eq!(m.daily_dose, Some(40.0));
     }
 
     #[test]
