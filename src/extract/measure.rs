@@ -9,7 +9,7 @@ use pest::iterators::Pair;
 use pest::Parser;
 
 use super::lexicon::{Kind, Label};
-use super::numbers::{parse_number, time_ref, PhraseSet};
+use super::numbers::{parse_number, time_ref};
 use super::Doc;
 use crate::context::Target;
 use crate::grammar::{Rule, ValueParser};
@@ -404,7 +404,7 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
     while !doc.text.is_char_boundary(from) {
         from += 1;
     }
-    static WORDS: PhraseSet = PhraseSet::new(&[
+    const WORDS: &[&str] = &[
         "aim",
         "target",
         "goal",
@@ -423,8 +423,9 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
         "stop if",
         "recheck",
         "re-check",
-    ]);
-    WORDS.any_in(&doc.text[from..start])
+    ];
+    static AC: std::sync::OnceLock<aho_corasick::AhoCorasick> = std::sync::OnceLock::new();
+    crate::text::phrase_automaton(&AC, WORDS.iter().copied()).is_match(&doc.text[from..start])
 }
 
 /// `Bloods on admission: ... creatinine 118`: a value the historical cue places at this

@@ -388,12 +388,7 @@ struct Clauses {
 impl Clauses {
     fn new(text: &str) -> Clauses {
         static AC: std::sync::OnceLock<aho_corasick::AhoCorasick> = std::sync::OnceLock::new();
-        let ac = AC.get_or_init(|| {
-            aho_corasick::AhoCorasick::builder()
-                .ascii_case_insensitive(true)
-                .build(TERMINATORS)
-                .expect("terminators form a valid automaton")
-        });
+        let ac = crate::text::phrase_automaton(&AC, TERMINATORS.iter().copied());
         let bytes = text.as_bytes();
         let bounds = memchr::memchr3_iter(b';', b'|', b'.', bytes)
             .filter(|&i| is_boundary_at(text, i))
@@ -625,10 +620,8 @@ fn frequency_of(word: &str) -> Option<(&'static str, Option<f64>)> {
 /// One automaton over [`FREQUENCY_PHRASES`], built once.
 fn frequency_automaton() -> &'static aho_corasick::AhoCorasick {
     static AC: std::sync::OnceLock<aho_corasick::AhoCorasick> = std::sync::OnceLock::new();
-    AC.get_or_init(|| {
-        aho_corasick::AhoCorasick::new(FREQUENCY_PHRASES.iter().map(|f| f.0))
-            .expect("frequency phrases form a valid automaton")
-    })
+    // The scope is lower case already, so matching ignoring ASCII case changes nothing.
+    crate::text::phrase_automaton(&AC, FREQUENCY_PHRASES.iter().map(|f| f.0))
 }
 
 /// Multi-word frequencies, matched on the lower-case scope: (phrase, name, per day).

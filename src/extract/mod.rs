@@ -137,15 +137,13 @@ fn detect_us_units(text: &str, system: UnitSystem) -> bool {
     // one case-insensitive pass. The first `US_CUES` cues are US, the rest SI.
     const US_CUES: usize = 7;
     static CUES: OnceLock<aho_corasick::AhoCorasick> = OnceLock::new();
-    let ac = CUES.get_or_init(|| {
-        aho_corasick::AhoCorasick::builder()
-            .ascii_case_insensitive(true)
-            .build([
-                " lb", "lbs", "°f", "mg/dl", "bun", " deg f", "pounds", // US
-                " kg", "kg ", "°c", "µmol", "umol", "μmol", " deg c", "g/l", // SI
-            ])
-            .expect("unit cues form a valid automaton")
-    });
+    let ac = crate::text::phrase_automaton(
+        &CUES,
+        [
+            " lb", "lbs", "°f", "mg/dl", "bun", " deg f", "pounds", // US
+            " kg", "kg ", "°c", "µmol", "umol", "μmol", " deg c", "g/l", // SI
+        ],
+    );
     let (mut us, mut si) = (0usize, 0usize);
     for m in ac.find_overlapping_iter(text) {
         if m.pattern().as_usize() < US_CUES {

@@ -101,36 +101,6 @@ pub fn cached(cell: &'static OnceLock<Regex>, pat: &str) -> &'static Regex {
     cell.get_or_init(|| Regex::new(pat).expect("valid regex"))
 }
 
-/// A fixed list of phrases, searched ASCII-case-insensitively in one pass (an Aho-Corasick
-/// automaton built on first use) rather than one substring search per phrase.
-pub struct PhraseSet {
-    phrases: &'static [&'static str],
-    automaton: OnceLock<aho_corasick::AhoCorasick>,
-}
-
-impl PhraseSet {
-    pub const fn new(phrases: &'static [&'static str]) -> PhraseSet {
-        PhraseSet {
-            phrases,
-            automaton: OnceLock::new(),
-        }
-    }
-
-    fn automaton(&self) -> &aho_corasick::AhoCorasick {
-        self.automaton.get_or_init(|| {
-            aho_corasick::AhoCorasick::builder()
-                .ascii_case_insensitive(true)
-                .build(self.phrases)
-                .expect("phrases form a valid automaton")
-        })
-    }
-
-    /// Whether any phrase occurs in `hay` (as a substring, in any ASCII case).
-    pub fn any_in(&self, hay: &str) -> bool {
-        self.automaton().is_match(hay)
-    }
-}
-
 /// Weights written with a unit, for the document's weight unit.
 pub fn weight_unit_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();

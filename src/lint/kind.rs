@@ -157,9 +157,7 @@ pub(crate) fn has_phrase(hay: &str, phrase: &str) -> bool {
 /// One automaton over every cue phrase, built once.
 fn cue_automaton() -> &'static AhoCorasick {
     static AC: OnceLock<AhoCorasick> = OnceLock::new();
-    AC.get_or_init(|| {
-        AhoCorasick::new(CUES.iter().map(|c| c.1)).expect("cue phrases form a valid automaton")
-    })
+    crate::text::phrase_automaton(&AC, CUES.iter().map(|c| c.1))
 }
 
 /// Where a cue was seen: 0 on the title line, 1 in the header block, 2 in the body.
