@@ -2,7 +2,7 @@
 
 use std::io::Write;
 
-use serde_json::{json, Value};
+use serde_json::Value;
 
 use super::batch::{run_command, Framing, Rendered};
 use super::{inputs, stream, ExtractArgs, ExtractFormat, InputFormat};
@@ -102,9 +102,7 @@ fn run_stream(args: &ExtractArgs, config: &Config) -> i32 {
 /// The extract result of one streamed document.
 pub fn extract_line(doc: &inputs::Doc, config: &Config) -> Value {
     let analysis = doc.text.as_deref().map(|t| crate::analyze(t, config));
-    let mut v = render::json::extract_document(doc, analysis.as_ref());
-    if let Some(obj) = v.as_object_mut() {
-        obj.insert("schema".into(), json!(render::json::EXTRACT_SCHEMA));
-    }
-    v
+    let view =
+        render::json::extract_view(doc, analysis.as_ref(), Some(render::json::EXTRACT_SCHEMA));
+    serde_json::to_value(view).unwrap_or(Value::Null)
 }

@@ -111,14 +111,8 @@ fn run_stream(args: &LintArgs, config: &crate::Config) -> i32 {
     let stdout = std::io::stdout();
     let result = super::stream::run(stdin.lock(), stdout.lock(), |_, doc| {
         let analysis = doc.text.as_deref().map(|t| crate::analyze(t, config));
-        let mut v = render::json::lint_document(doc, analysis.as_ref());
-        if let Some(obj) = v.as_object_mut() {
-            obj.insert(
-                "schema".into(),
-                serde_json::json!(render::json::LINT_SCHEMA),
-            );
-        }
-        v
+        let view = render::json::lint_view(doc, analysis.as_ref(), Some(render::json::LINT_SCHEMA));
+        serde_json::to_value(view).unwrap_or(serde_json::Value::Null)
     });
     super::stream::exit_code(result)
 }
