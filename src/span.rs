@@ -43,6 +43,9 @@ pub struct LineIndex<'a> {
     /// it, UTF-16 code units before it). Columns on very long lines then cost at most one
     /// checkpoint's worth of counting, not the whole line.
     checkpoints: Vec<(usize, usize, usize)>,
+    /// One flag per checkpoint: the bytes up to the next checkpoint are all ASCII, so a
+    /// column inside them is a byte difference.
+    ascii_blocks: Vec<bool>,
 }
 
 const CHECKPOINT: usize = 512;
@@ -63,6 +66,7 @@ impl<'a> LineIndex<'a> {
         line_starts.push(0);
         line_starts.extend(memchr_iter(b'\n', text.as_bytes()).map(|i| i + 1));
         let mut checkpoints = Vec::with_capacity(text.len() / CHECKPOINT + 1);
+        let mut ascii_blocks = Vec::with_capacity(text.len() / CHECKPOINT + 1);
         let (mut chars, mut units, mut at) = (0usize, 0usize, 0usize);
         checkpoints.push((0, 0, 0));
         while at + CHECKPOINT < text.len() {
@@ -70,16 +74,20 @@ impl<'a> LineIndex<'a> {
             while !text.is_char_boundary(next) {
                 next += 1;
             }
-            let (c, u) = counts_of(&text[at..next]);
+            let block = &text[at..next];
+            ascii_blocks.push(block.is_ascii());
+            let (c, u) = counts_of(block);
             chars += c;
             units += u;
             at = next;
             checkpoints.push((at, chars, units));
         }
+        ascii_blocks.push(text[at..].is_ascii());
         LineIndex {
             text,
             line_starts,
             checkpoints,
+            ascii_blocks,
         }
     }
 
@@ -87,15 +95,15 @@ impl<'a> LineIndex<'a> {
     fn counts_before(&self, offset: usize) -> (usize, usize) {
         let i = self.checkpoints.partition_point(|c| c.0 <= offset) - 1;
         let (at, chars, units) = self.checkpoints[i];
+        if self.ascii_blocks.get(i).copied().unwrap_or(false) {
+            return (chars + offset - at, units + offset - at);
+        }
         let (c, u) = counts_of(&self.text[at..offset]);
         (chars + c, units + u)
     }
 
     /// Scalar values and UTF-16 code units between two char boundaries `a <= b`.
     fn counts_between(&self, a: usize, b: usize) -> (usize, usize) {
-        if b - a <= CHECKPOINT {
-            return counts_of(&self.text[a..b]);
-        }
         let (ca, ua) = self.counts_before(a);
         let (cb, ub) = self.counts_before(b);
         (cb - ca, ub - ua)
@@ -280,6 +288,32 @@ mod tests {
         assert_eq!(idx.position(at), (1, plain));
         let units: u32 = text[..at].chars().map(|c| c.len_utf16() as u32).sum();
         assert_eq!(idx.utf16_column(at), units);
+    }
+
+    #[test]
+    fn columns_match_a_plain_count_across_ascii_and_mixed_blocks() {
+        // Long ASCII stretches (counted by difference) beside stretches with µ, ° and an
+        // astral character (counted byte by byte), on one long line and on short lines.
+        let mut text = "a".repeat(1500);
+        text.push_str("µ°😀 ");
+        text.push_str(&"b".repeat(700));
+        text.push('\n');
+        for i in 0..40 {
+            text.push_str(if i % 3 == 0 {
+                "K 4.1 µmol/L\n"
+            } else {
+                "HR 88 bpm\n"
+            });
+        }
+        let idx = LineIndex::new(&text);
+        for (at, _) in text.char_indices() {
+            let line_start = text[..at].rfind('\n').map_or(0, |i| i + 1);
+            let before = &text[line_start..at];
+            let line = text[..at].matches('\n').count() as u32 + 1;
+            assert_eq!(idx.position(at), (line, before.chars().count() as u32 + 1));
+            let units: usize = before.chars().map(char::len_utf16).sum();
+            assert_eq!(idx.utf16_column(at), units as u32);
+        }
     }
 
     #[test]

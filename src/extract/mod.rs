@@ -210,9 +210,9 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
     findings::patient_facts(&doc, &mut out);
 
     let mut measurements = dedupe(out.measurements);
-    measurements.sort_by_key(|m| (m.span.start, m.concept));
-    out.findings.sort_by_key(|f| f.span.start);
-    out.statements.sort_by_key(|s| s.span.start);
+    sort_large_by_key(&mut measurements, |m| (m.span.start, m.concept));
+    sort_large_by_key(&mut out.findings, |f| f.span.start);
+    sort_large_by_key(&mut out.statements, |s| s.span.start);
     let note_date = episodes::note_date(text, &index, &found_dates, &episodes);
     Extraction {
         sections: sections.clone(),
@@ -241,7 +241,9 @@ pub fn flatten(text: &str) -> String {
 /// Drop measurements that repeat another of the same concept over the same text (a label
 /// read twice by two passes).
 fn dedupe(mut ms: Vec<Measurement>) -> Vec<Measurement> {
-    ms.sort_by_key(|m| (m.concept, m.span.start, std::cmp::Reverse(m.span.end)));
+    sort_large_by_key(&mut ms, |m| {
+        (m.concept, m.span.start, std::cmp::Reverse(m.span.end))
+    });
     let mut out: Vec<Measurement> = Vec::with_capacity(ms.len());
     for m in ms {
         let dup = out.iter().rev().take(8).any(|o| {
@@ -257,6 +259,18 @@ fn dedupe(mut ms: Vec<Measurement>) -> Vec<Measurement> {
     out
 }
 
+/// A stable sort of records too large to move often: sorts (key, index) pairs, then moves
+/// each record once. Same order as `sort_by_key`.
+fn sort_large_by_key<T, K: Ord>(items: &mut Vec<T>, key: impl Fn(&T) -> K) {
+    if items.is_sorted_by_key(&key) {
+        return;
+    }
+    let mut order: Vec<(K, usize)> = items.iter().map(&key).zip(0..).collect();
+    order.sort_unstable();
+    let mut slots: Vec<Option<T>> = items.drain(..).map(Some).collect();
+    items.extend(order.into_iter().filter_map(|(_, i)| slots[i].take()));
+}
+
 /// Day/month order of a document, for callers outside extraction (the handover sheet).
 pub fn date_order(text: &str, opts: &ExtractOptions) -> DateOrder {
     dates::resolve_order(
@@ -264,4 +278,23 @@ pub fn date_order(text: &str, opts: &ExtractOptions) -> DateOrder {
         opts.date_order,
         detect_us_units(text, opts.unit_system),
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::sort_large_by_key;
+    use proptest::prelude::*;
+
+    proptest! {
+        /// The permutation sort gives exactly the standard library's stable order, ties
+        /// included (the second field tells equal keys apart).
+        #[test]
+        fn permutation_sort_matches_the_stable_sort(items in proptest::collection::vec((0u8..6, any::<u16>()), 0..200)) {
+            let mut expected = items.clone();
+            expected.sort_by_key(|x| x.0);
+            let mut got = items;
+            sort_large_by_key(&mut got, |x| x.0);
+            prop_assert_eq!(got, expected);
+        }
+    }
 }
