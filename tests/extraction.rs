@@ -110,6 +110,46 @@ fn weights_and_asides() {
         .any(|s| s.kind == StatementKind::TargetWeight && s.value == "72"));
 }
 
+/// Each value of a pair of weights with its own time word gets that time, not its
+/// neighbour's (common practice, no source: time words sit next to the value they date).
+#[test]
+fn time_words_date_the_value_they_sit_beside() {
+    use tidemark::model::TimeRef as T;
+    let times = |text: &str| -> Vec<(f64, Option<T>, Temporality)> {
+        ex(text)
+            .measurements
+            .iter()
+            .filter(|m| m.concept == M::Weight)
+            .map(|m| (m.value, m.time_ref, m.temporality))
+            .collect()
+    };
+    let (now, hist) = (Temporality::Current, Temporality::Historical);
+    assert_eq!(
+        times("Weight (standing scale): 88.3 kg  Prev: 89.1 kg"),
+        [(88.3, None, now), (89.1, Some(T::Previous), now)]
+    );
+    assert_eq!(
+        times("Weight 88.3 kg, prev 89.1 kg"),
+        [(88.3, None, now), (89.1, Some(T::Previous), now)]
+    );
+    assert_eq!(
+        times("weight 71.4 kg (71.9 kg at last visit)"),
+        [(71.4, None, now), (71.9, Some(T::Previous), now)]
+    );
+    assert_eq!(
+        times("Weight 80 kg, 84 kg on admission"),
+        [(80.0, None, now), (84.0, Some(T::Admission), hist)]
+    );
+    assert_eq!(
+        times("Weight 80 kg, was 84 kg on admission"),
+        [(80.0, None, now), (84.0, Some(T::Admission), hist)]
+    );
+    assert_eq!(
+        times("Wt 81.2 kg today, 82.0 kg yesterday"),
+        [(81.2, Some(T::Today), now), (82.0, Some(T::Yesterday), now)]
+    );
+}
+
 #[test]
 fn weight_tables_and_row_blocks() {
     let table = "Date        Weight (kg)  Urine (mL)  Net (mL)\n\
@@ -432,6 +472,16 @@ fn historical_and_experiencer_families() {
     )
     .unwrap();
     assert_eq!(t, Temporality::Historical);
+    // The heading of the present illness holds "history of" but names the current story:
+    // a pseudo-trigger (ConText's pseudo-historical terms, domain reference 04-assertions.md;
+    // the heading wordings are common practice, no source).
+    for text in [
+        "History of presenting complaint: 3 days of orthopnoea.",
+        "History of present illness: worsening orthopnea for a week.",
+    ] {
+        let (_, t, _) = finding(text, FindingConcept::Orthopnea).unwrap();
+        assert_eq!(t, Temporality::Current, "{text}");
+    }
     let (_, _, x) = finding("Mother had ankle oedema.", FindingConcept::PeripheralEdema).unwrap();
     assert_eq!(x, Experiencer::Other);
     let (_, _, x) = finding(

@@ -67,6 +67,52 @@ fn preceded_by_change(doc: &Doc, start: usize) -> bool {
         || NOT_A_VALUE_BEFORE.iter().any(|w| before.contains(w))
 }
 
+/// Time words written just before an unlabelled value, which date it: `prev 89.1 kg`,
+/// `Prev: 89.1 kg`, `at last visit 71.9 kg` (common practice, no source). Not "was": `today
+/// he was 96.1 kg` is a copula.
+const LEADING_TIME_WORDS: &[&str] = &[
+    "at last visit",
+    "at the last visit",
+    "last visit",
+    "at last clinic",
+    "last clinic",
+    "on admission",
+    "at admission",
+    "admission",
+    "on adm",
+    "adm",
+    "at baseline",
+    "baseline",
+    "usual",
+    "previously",
+    "previous",
+    "prev",
+    "prior",
+    "yesterday",
+    "yest",
+    "today",
+    "on discharge",
+    "at discharge",
+    "discharge",
+];
+
+/// The time a word right before `start` (on its line) gives an unlabelled value.
+fn leading_time_ref(doc: &Doc, start: usize) -> Option<crate::model::TimeRef> {
+    let line = doc.line_at(start);
+    let mut from = start.saturating_sub(24).max(line.start);
+    while !doc.text.is_char_boundary(from) {
+        from += 1;
+    }
+    let before = doc.text[from..start]
+        .trim_end_matches([' ', '\t', ':', '='])
+        .to_ascii_lowercase();
+    let word = LEADING_TIME_WORDS.iter().find(|w| {
+        before.ends_with(*w)
+            && !before[..before.len() - w.len()].ends_with(|c: char| c.is_ascii_alphanumeric())
+    })?;
+    super::numbers::time_ref(word)
+}
+
 /// Values without a label.
 pub fn unlabelled(doc: &Doc, out: &mut Output) {
     weights(doc, out);
@@ -110,6 +156,7 @@ fn weights(doc: &Doc, out: &mut Output) {
             continue;
         }
         // Reuse the weight grammar from the number on, for asides, chains and stones.
+        let first = out.measurements.len();
         super::measure::weight(
             doc,
             out,
@@ -117,6 +164,11 @@ fn weights(doc: &Doc, out: &mut Output) {
             num.start(),
             num.start(),
         );
+        if let Some(m) = out.measurements.get_mut(first) {
+            if m.time_ref.is_none() {
+                m.time_ref = leading_time_ref(doc, num.start());
+            }
+        }
     }
     dated_weight_lists(doc, out);
     weight_row_blocks(doc, out);

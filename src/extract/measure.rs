@@ -304,11 +304,21 @@ fn item_reading(p: Pair<Rule>, base: usize) -> Option<Reading> {
     {
         target = true;
     }
+    // `was 84 kg on admission`: a plain "was" or "from" gives way to a time word that says
+    // when.
+    let mut generic = false;
+    let mut take_when = |text: &str, when: &mut Option<TimeRef>| {
+        let t = time_ref(text);
+        if when.is_none() || (generic && t.is_some()) {
+            generic = matches!(text.trim().to_ascii_lowercase().as_str(), "was" | "from");
+            *when = t.or(*when);
+        }
+    };
     for c in p.into_inner() {
         match c.as_rule() {
             Rule::target_word => target = true,
-            Rule::when | Rule::aside_word if r.is_none() => when = time_ref(c.as_str()).or(when),
-            Rule::when | Rule::trailing_when => when = time_ref(c.as_str()).or(when),
+            Rule::when | Rule::aside_word if r.is_none() => take_when(c.as_str(), &mut when),
+            Rule::when | Rule::trailing_when => take_when(c.as_str(), &mut when),
             Rule::reading => r = reading_of(c, base),
             Rule::unit => {
                 if let Some(r) = r.as_mut() {
@@ -441,6 +451,36 @@ fn admission_cue(ctx: &crate::model::Context) -> Option<TimeRef> {
         .then_some(TimeRef::Admission)
 }
 
+/// `Weight 80 kg, 84 kg on admission`: a time cue after the value with another number in
+/// between dates that number, not this one (common practice, no source; ConText's scopes
+/// end at the nearest mention of the same kind, domain reference 04-assertions.md).
+fn later_value_owns_time_cue(doc: &Doc, ctx: &mut crate::model::Context, end: usize) {
+    use crate::model::Temporality;
+    if ctx.temporality != Temporality::Historical || ctx.cues.iter().any(|c| c.family == "section")
+    {
+        return;
+    }
+    let mut historical = ctx
+        .cues
+        .iter()
+        .filter(|c| c.family == "historical")
+        .peekable();
+    if historical.peek().is_none() {
+        return;
+    }
+    let all_beyond_a_number = historical.all(|c| {
+        c.span.start >= end
+            && doc
+                .text
+                .get(end..c.span.start)
+                .is_some_and(|between| between.bytes().any(|b| b.is_ascii_digit()))
+    });
+    if all_beyond_a_number {
+        ctx.temporality = Temporality::Current;
+        ctx.cues.retain(|c| c.family != "historical");
+    }
+}
+
 /// Build a measurement from a reading and push it, with its context, unit and date.
 pub fn push(
     doc: &Doc,
@@ -480,7 +520,8 @@ pub fn push(
         units::normalize(concept, r.value, code, bun).map(|(value, unit)| Quantity { value, unit });
     let start = span_start.min(r.start);
     let end = r.end.max(start);
-    let ctx = doc.engine.context(start, end, Target::Measurement, false);
+    let mut ctx = doc.engine.context(start, end, Target::Measurement, false);
+    later_value_owns_time_cue(doc, &mut ctx, end);
     let date = r
         .date
         .clone()
@@ -765,6 +806,14 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
                     // `15/03 68.4 kg, today 67.6 kg`: the time word dates this item, not
                     // the date of the item before it on the line.
                     Rule::when => when = time_ref(part.as_str()),
+                    // `80 kg, was 84 kg on admission`: a time word after the value says
+                    // when, over a plain "was" or "from" before it.
+                    Rule::trailing_when => {
+                        let t = time_ref(part.as_str());
+                        if when.is_none() || when == Some(TimeRef::Previous) {
+                            when = t.or(when);
+                        }
+                    }
                     Rule::reading => r = reading_of(part, end),
                     Rule::unit => {
                         if let Some(r) = r.as_mut() {

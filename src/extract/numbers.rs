@@ -81,6 +81,8 @@ pub fn time_ref(word: &str) -> Option<TimeRef> {
     } else if w.starts_with("prev")
         || w.starts_with("prior")
         || w.starts_with("last")
+        || w.starts_with("at last")
+        || w.starts_with("at the last")
         || w.contains("clinic")
         || w.contains("before")
         || w == "was"
@@ -136,6 +138,7 @@ mod tests {
         assert_eq!(time_ref("yest"), Some(TimeRef::Yesterday));
         assert_eq!(time_ref("at baseline"), Some(TimeRef::Baseline));
         assert_eq!(time_ref("last clinic"), Some(TimeRef::Previous));
+        assert_eq!(time_ref("at the last visit"), Some(TimeRef::Previous));
         assert_eq!(time_ref("today"), Some(TimeRef::Today));
         assert_eq!(time_ref("on discharge"), Some(TimeRef::Discharge));
         assert_eq!(time_ref("banana"), None);
