@@ -403,6 +403,20 @@ fn negation_family() {
         assertion(t, FindingConcept::Orthopnea),
         Some(Assertion::Absent)
     );
+    // "unlikely" negates what it follows ("crackles unlikely") and, as "unlikely to be/have",
+    // what comes after it (domain reference 04-assertions.md: "... unlikely", negation).
+    assert_eq!(
+        assertion("Unlikely to have crackles.", FindingConcept::Crackles),
+        Some(Assertion::Absent)
+    );
+    let e = ex("Unlikely to be fluid overloaded.");
+    assert!(
+        e.statements
+            .iter()
+            .any(|s| s.kind == StatementKind::VolumeStatus && s.assertion == Assertion::Absent),
+        "{:?}",
+        e.statements
+    );
     assert_eq!(assertion(t, FindingConcept::Pnd), Some(Assertion::Absent));
     assert_eq!(
         assertion(t, FindingConcept::PeripheralEdema),
