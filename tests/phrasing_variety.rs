@@ -324,6 +324,19 @@ const FINDINGS: &[Find] = &[
     f("Oedema not improved.", F::PeripheralEdema, Present),
     f("Equivocal crackles.", F::Crackles, Possible),
     f("R/o effusion.", F::PleuralEffusion, Possible),
+    // 04 §4.4 rule 7: double negation ("not without ...") is possible, not negated.
+    f("Chest: not without crackles.", F::Crackles, Possible),
+    f(
+        "Not without oedema to the ankles.",
+        F::PeripheralEdema,
+        Possible,
+    ),
+    f("Legs not w/o oedema.", F::PeripheralEdema, Possible),
+    f("Bibasal creps not absent.", F::Crackles, Possible),
+    // The plain negations beside them stay negated.
+    f("Chest: without crackles.", F::Crackles, Absent),
+    f("Not oedematous; no crackles.", F::Crackles, Absent),
+    f("Not without difficulty, no crackles.", F::Crackles, Absent),
     f("Nil PND, nil orthopnoea.", F::Orthopnea, Absent),
     f(
         "ROS negative for chest pain, dyspnea, orthopnea.",
