@@ -334,6 +334,12 @@ impl<'a> ContextEngine<'a> {
             }
             let words = self.words(gap_a, gap_b, 6);
             let q_is = &self.text[c.start..c.end] == "?";
+            // `LVF?`: a question mark right after a word belongs to that word only.
+            let q_suffix = q_is
+                && self.text[..c.start]
+                    .chars()
+                    .next_back()
+                    .is_some_and(char::is_alphanumeric);
             match family {
                 Family::Negation if target != Target::Measurement => {
                     let reach = if before {
@@ -350,7 +356,8 @@ impl<'a> ContextEngine<'a> {
                         // "?S3", "? fluid overload" forward; "LVF?" backward, adjacent only.
                         // "?soft S3", "?small bilateral effusions": describing words may sit
                         // between.
-                        (before && words <= 2 && gap_b - gap_a <= 24) || (after && gap_b == gap_a)
+                        (before && !q_suffix && words <= 2 && gap_b - gap_a <= 24)
+                            || (after && gap_b == gap_a)
                     } else if before && litotes(&self.text[c.start..c.end]) {
                         // "not without crackles": the double negative qualifies the words
                         // right after it, not the next clause ("not without difficulty, no

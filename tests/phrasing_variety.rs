@@ -333,6 +333,14 @@ const FINDINGS: &[Find] = &[
     ),
     f("Legs not w/o oedema.", F::PeripheralEdema, Possible),
     f("Bibasal creps not absent.", F::Crackles, Possible),
+    // 03 §3.1: a question mark before or right after the word makes it possible; one
+    // glued to the end of a word does not reach the next word.
+    f("?S3.", F::S3, Possible),
+    f("S3?", F::S3, Possible),
+    f("JVP raised? Oedema to ankles.", F::RaisedJvp, Possible),
+    f("JVP raised? Oedema to ankles.", F::PeripheralEdema, Present),
+    f("Crackles? effusion", F::Crackles, Possible),
+    f("Crackles? effusion", F::PleuralEffusion, Present),
     // The plain negations beside them stay negated.
     f("Chest: without crackles.", F::Crackles, Absent),
     f("Not oedematous; no crackles.", F::Crackles, Absent),
@@ -472,4 +480,28 @@ fn class_alone_stays_unread_without_heart_failure_context() {
     // class; without NYHA, heart failure or "symptoms" beside it, it is not read.
     let e = ex("Class II indication for the procedure.");
     assert!(e.statements.iter().all(|s| s.kind != StatementKind::Nyha));
+}
+
+#[test]
+fn question_marks_on_abbreviations() {
+    // 04 §4.5 ("?LVF - CXR requested": possible) and 03 §3.1 (`LVF?` is the same).
+    for text in ["?LVF - CXR requested", "LVF? CXR requested.", "Imp: CCF?"] {
+        let e = ex(text);
+        let got: Vec<_> = e
+            .statements
+            .iter()
+            .filter(|s| s.kind == StatementKind::HeartFailure)
+            .map(|s| s.assertion)
+            .collect();
+        assert_eq!(got, [Possible], "{text:?}");
+    }
+    // The mark after one abbreviation leaves the next one alone.
+    let e = ex("LVF? ADHF.");
+    let got: Vec<_> = e
+        .statements
+        .iter()
+        .filter(|s| s.kind == StatementKind::Acuity)
+        .map(|s| (s.value.as_str(), s.assertion))
+        .collect();
+    assert_eq!(got, [("acute", Present)]);
 }
