@@ -505,3 +505,48 @@ fn question_marks_on_abbreviations() {
         .collect();
     assert_eq!(got, [("acute", Present)]);
 }
+
+#[test]
+fn decades_are_approximate_lower_bounds() {
+    // 03 §3.6 lists "SBP 90s"; 03 §3.1 says keep an approximate value and flag it. The
+    // decade's lower bound is the value (common practice, no source: "100s" is 100-109).
+    use tidemark::model::Qualifier;
+    let rows: &[(&str, MeasureConcept, f64)] = &[
+        ("BP 100s/60s", M::SystolicBp, 100.0),
+        ("BP 100s/60s", M::DiastolicBp, 60.0),
+        ("BP 110s over 70s", M::DiastolicBp, 70.0),
+        ("SBP 90s", M::SystolicBp, 90.0),
+    ];
+    for &(text, concept, value) in rows {
+        let e = ex(text);
+        let got: Vec<_> = e
+            .measurements
+            .iter()
+            .filter(|x| x.concept == concept)
+            .map(|x| (x.value, x.unit, x.qualifier))
+            .collect();
+        assert_eq!(
+            got,
+            [(value, Some("mm[Hg]"), Some(Qualifier::Approximate))],
+            "{text:?}"
+        );
+    }
+    // Only the number written with the decade is approximate.
+    let e = ex("BP 120/80s");
+    let q: Vec<_> = e.measurements.iter().map(|x| x.qualifier).collect();
+    assert_eq!(q, [None, Some(Qualifier::Approximate)]);
+    // A decade gives no unit or plausibility diagnostic the exact numbers do not.
+    let cfg = tidemark::Config::default();
+    let rules = |text: &str| {
+        let mut r: Vec<_> = tidemark::analyze(text, &cfg)
+            .diagnostics
+            .iter()
+            .map(|d| d.rule)
+            .collect();
+        r.sort_unstable();
+        r
+    };
+    let note = "Ward round, day 3 ADHF.\nObs: BP {sys}/{dia}, SBP {sys} overnight.\nPlan: continue furosemide.\n";
+    let with = |sys: &str, dia: &str| note.replace("{sys}", sys).replace("{dia}", dia);
+    assert_eq!(rules(&with("100s", "60s")), rules(&with("100", "60")));
+}
