@@ -550,3 +550,80 @@ fn decades_are_approximate_lower_bounds() {
     let with = |sys: &str, dia: &str| note.replace("{sys}", sys).replace("{dia}", dia);
     assert_eq!(rules(&with("100s", "60s")), rules(&with("100", "60")));
 }
+
+#[test]
+fn the_later_value_of_a_course_is_the_current_one() {
+    // A course of two values: both are read and the later is the current one, so the
+    // note's trend runs from the first to the second. Sources per row.
+    enum S {
+        Weight,
+        Creatinine,
+        Potassium,
+    }
+    let rows: &[(&str, S, f64, f64)] = &[
+        // 01 §1.2 ("Cr 132 -> 149 umol/L") and 03 §3.1: an arrow means "to".
+        ("Cr 132 -> 149 umol/L, K 5.3", S::Creatinine, 132.0, 149.0),
+        ("Cr 118 → 131.", S::Creatinine, 118.0, 131.0),
+        ("K 5.3 -> 4.6", S::Potassium, 5.3, 4.6),
+        ("Weight 84.2 -> 82.1 kg", S::Weight, 84.2, 82.1),
+        // Common practice, no source: "from X to Y", "was X, now Y".
+        ("Creatinine from 132 to 149.", S::Creatinine, 132.0, 149.0),
+        ("K went from 5.8 to 4.9.", S::Potassium, 5.8, 4.9),
+        ("wt from 84.2 kg to 82.1 kg", S::Weight, 84.2, 82.1),
+        ("Cr was 132, now 149.", S::Creatinine, 132.0, 149.0),
+        ("K was 5.8 and is now 4.9.", S::Potassium, 5.8, 4.9),
+        (
+            "Potassium was 5.9, now at 5.1 mmol/L.",
+            S::Potassium,
+            5.9,
+            5.1,
+        ),
+        ("Wt was 84.2, now 82.1", S::Weight, 84.2, 82.1),
+        ("Weight was 84.2 kg, now 82.1 kg.", S::Weight, 84.2, 82.1),
+        // 1.2 and 1.6 mg/dL in the canonical µmol/L (x 88.4, 05 §5.3).
+        (
+            "Creatinine was 1.2 now 1.6 mg/dL.",
+            S::Creatinine,
+            1.2 * 88.4,
+            1.6 * 88.4,
+        ),
+    ];
+    let mut failures = Vec::new();
+    for (text, s, first, last) in rows {
+        let e = ex(text);
+        let t = tidemark::picture::build(&e).trends;
+        let (a, b, n) = match s {
+            S::Weight => (t.weight.first, t.weight.last, t.weight.points.len()),
+            S::Creatinine => (
+                t.creatinine.first,
+                t.creatinine.last,
+                t.creatinine.points.len(),
+            ),
+            S::Potassium => (
+                t.potassium.first,
+                t.potassium.last,
+                t.potassium.points.len(),
+            ),
+        };
+        let close = |x: Option<f64>, y: f64| x.is_some_and(|x| (x - y).abs() < 1e-6);
+        if n != 2 || !close(a, *first) || !close(b, *last) {
+            failures.push(format!(
+                "{text:?}: want {first} -> {last}, got {a:?} -> {b:?} ({n} points)"
+            ));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn now_after_a_value_is_its_time_word() {
+    // "K 5.8 now" places 5.8 today; it does not start another value.
+    let e = ex("K 5.8 now, recheck in the morning.");
+    let got: Vec<_> = e
+        .measurements
+        .iter()
+        .filter(|x| x.concept == M::Potassium)
+        .map(|x| (x.value, x.time_ref))
+        .collect();
+    assert_eq!(got, [(5.8, Some(tidemark::model::TimeRef::Today))]);
+}
