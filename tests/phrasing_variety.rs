@@ -94,6 +94,64 @@ const MEASUREMENTS: &[Meas] = &[
         "/min",
         true,
     ),
+    // Common practice, no source: an unlabelled vitals line in the conventional order
+    // (BP, HR, RR, SpO2, temperature); the labelled form is 03 §3.6.
+    m(
+        "Vitals: 128/76, 84, 18, 98% RA, 36.8",
+        M::HeartRate,
+        84.0,
+        "/min",
+        true,
+    ),
+    m(
+        "Vitals: 128/76, 84, 18, 98% RA, 36.8",
+        M::RespiratoryRate,
+        18.0,
+        "/min",
+        true,
+    ),
+    m(
+        "Vitals: 128/76, 84, 18, 98% RA, 36.8",
+        M::Temperature,
+        36.8,
+        "Cel",
+        true,
+    ),
+    m(
+        "Obs: 104/68, 96 irreg, 95% on 2L NC, 36.9",
+        M::Temperature,
+        36.9,
+        "Cel",
+        true,
+    ),
+    m(
+        "VS: 102/64 88 18 96% 98.4F",
+        M::Temperature,
+        98.4,
+        "[degF]",
+        false,
+    ),
+    m(
+        "VS: 102/64 88 18 96% 98.4F",
+        M::RespiratoryRate,
+        18.0,
+        "/min",
+        true,
+    ),
+    m(
+        "Obs: BP 128/76 HR 84 RR 18 SpO2 98% RA T 36.8",
+        M::RespiratoryRate,
+        18.0,
+        "/min",
+        true,
+    ),
+    m(
+        "Obs: BP 128/76 HR 84 RR 18 SpO2 98% RA T 36.8",
+        M::Temperature,
+        36.8,
+        "Cel",
+        true,
+    ),
     // 03 §3.6: US temperature and rate forms.
     m("T 99.1F", M::Temperature, 99.1, "[degF]", false),
     m("RR 22 bpm", M::RespiratoryRate, 22.0, "/min", false),
@@ -223,6 +281,15 @@ const NOT_A_READING: &[(&str, MeasureConcept)] = &[
     ("JVP at 90 degrees.", M::Jvp),
     // 11 §11.3: a fluid restriction is an instruction, not an intake or a balance.
     ("FR 1.5 L/day", M::FluidBalance),
+    // Common practice, no source: unlabelled numbers are read by position only after a
+    // vitals label, from a blood pressure on, and only while each fits its place (18 is
+    // no heart rate, so the line is not guessed at).
+    ("128/76, 84, 18, 98% RA, 36.8", M::HeartRate),
+    ("Vitals: 84, 18, 98% RA, 36.8", M::HeartRate),
+    ("Vitals: 128/76, 18, 98% RA", M::HeartRate),
+    ("Vitals: 128/76, 18, 98% RA", M::RespiratoryRate),
+    ("Obs: 128/76, 84, 18, 98%, 36.8, 5", M::Temperature),
+    ("Plan: repeat obs 128/76, 84, 18", M::HeartRate),
 ];
 
 #[test]
