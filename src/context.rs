@@ -112,6 +112,15 @@ fn year_cues(text: &str) -> Vec<(usize, usize)> {
         .collect()
 }
 
+/// A double-negative cue (`not without`, `not w/o`): 04 §4.4 rule 7 reads it as possible.
+fn litotes(cue: &str) -> bool {
+    let mut words = cue.split_whitespace();
+    words.next().is_some_and(|w| w.eq_ignore_ascii_case("not"))
+        && words
+            .next()
+            .is_some_and(|w| w.eq_ignore_ascii_case("without") || w.eq_ignore_ascii_case("w/o"))
+}
+
 fn any_in(sorted: &[(usize, usize)], a: usize, b: usize) -> bool {
     let i = sorted.partition_point(|&(s, _)| s < a);
     sorted.get(i).is_some_and(|&(_, e)| e <= b)
@@ -325,6 +334,12 @@ impl<'a> ContextEngine<'a> {
             }
             let words = self.words(gap_a, gap_b, 6);
             let q_is = &self.text[c.start..c.end] == "?";
+            // `LVF?`: a question mark right after a word belongs to that word only.
+            let q_suffix = q_is
+                && self.text[..c.start]
+                    .chars()
+                    .next_back()
+                    .is_some_and(char::is_alphanumeric);
             match family {
                 Family::Negation if target != Target::Measurement => {
                     let reach = if before {
@@ -341,7 +356,13 @@ impl<'a> ContextEngine<'a> {
                         // "?S3", "? fluid overload" forward; "LVF?" backward, adjacent only.
                         // "?soft S3", "?small bilateral effusions": describing words may sit
                         // between.
-                        (before && words <= 2 && gap_b - gap_a <= 24) || (after && gap_b == gap_a)
+                        (before && !q_suffix && words <= 2 && gap_b - gap_a <= 24)
+                            || (after && gap_b == gap_a)
+                    } else if before && litotes(&self.text[c.start..c.end]) {
+                        // "not without crackles": the double negative qualifies the words
+                        // right after it, not the next clause ("not without difficulty, no
+                        // oedema").
+                        words <= 3 && !self.text[gap_a..gap_b].contains(',')
                     } else if before {
                         words <= 5
                     } else {

@@ -94,6 +94,64 @@ const MEASUREMENTS: &[Meas] = &[
         "/min",
         true,
     ),
+    // Common practice, no source: an unlabelled vitals line in the conventional order
+    // (BP, HR, RR, SpO2, temperature); the labelled form is 03 §3.6.
+    m(
+        "Vitals: 128/76, 84, 18, 98% RA, 36.8",
+        M::HeartRate,
+        84.0,
+        "/min",
+        true,
+    ),
+    m(
+        "Vitals: 128/76, 84, 18, 98% RA, 36.8",
+        M::RespiratoryRate,
+        18.0,
+        "/min",
+        true,
+    ),
+    m(
+        "Vitals: 128/76, 84, 18, 98% RA, 36.8",
+        M::Temperature,
+        36.8,
+        "Cel",
+        true,
+    ),
+    m(
+        "Obs: 104/68, 96 irreg, 95% on 2L NC, 36.9",
+        M::Temperature,
+        36.9,
+        "Cel",
+        true,
+    ),
+    m(
+        "VS: 102/64 88 18 96% 98.4F",
+        M::Temperature,
+        98.4,
+        "[degF]",
+        false,
+    ),
+    m(
+        "VS: 102/64 88 18 96% 98.4F",
+        M::RespiratoryRate,
+        18.0,
+        "/min",
+        true,
+    ),
+    m(
+        "Obs: BP 128/76 HR 84 RR 18 SpO2 98% RA T 36.8",
+        M::RespiratoryRate,
+        18.0,
+        "/min",
+        true,
+    ),
+    m(
+        "Obs: BP 128/76 HR 84 RR 18 SpO2 98% RA T 36.8",
+        M::Temperature,
+        36.8,
+        "Cel",
+        true,
+    ),
     // 03 §3.6: US temperature and rate forms.
     m("T 99.1F", M::Temperature, 99.1, "[degF]", false),
     m("RR 22 bpm", M::RespiratoryRate, 22.0, "/min", false),
@@ -223,6 +281,15 @@ const NOT_A_READING: &[(&str, MeasureConcept)] = &[
     ("JVP at 90 degrees.", M::Jvp),
     // 11 §11.3: a fluid restriction is an instruction, not an intake or a balance.
     ("FR 1.5 L/day", M::FluidBalance),
+    // Common practice, no source: unlabelled numbers are read by position only after a
+    // vitals label, from a blood pressure on, and only while each fits its place (18 is
+    // no heart rate, so the line is not guessed at).
+    ("128/76, 84, 18, 98% RA, 36.8", M::HeartRate),
+    ("Vitals: 84, 18, 98% RA, 36.8", M::HeartRate),
+    ("Vitals: 128/76, 18, 98% RA", M::HeartRate),
+    ("Vitals: 128/76, 18, 98% RA", M::RespiratoryRate),
+    ("Obs: 128/76, 84, 18, 98%, 36.8, 5", M::Temperature),
+    ("Plan: repeat obs 128/76, 84, 18", M::HeartRate),
 ];
 
 #[test]
@@ -324,6 +391,27 @@ const FINDINGS: &[Find] = &[
     f("Oedema not improved.", F::PeripheralEdema, Present),
     f("Equivocal crackles.", F::Crackles, Possible),
     f("R/o effusion.", F::PleuralEffusion, Possible),
+    // 04 §4.4 rule 7: double negation ("not without ...") is possible, not negated.
+    f("Chest: not without crackles.", F::Crackles, Possible),
+    f(
+        "Not without oedema to the ankles.",
+        F::PeripheralEdema,
+        Possible,
+    ),
+    f("Legs not w/o oedema.", F::PeripheralEdema, Possible),
+    f("Bibasal creps not absent.", F::Crackles, Possible),
+    // 03 §3.1: a question mark before or right after the word makes it possible; one
+    // glued to the end of a word does not reach the next word.
+    f("?S3.", F::S3, Possible),
+    f("S3?", F::S3, Possible),
+    f("JVP raised? Oedema to ankles.", F::RaisedJvp, Possible),
+    f("JVP raised? Oedema to ankles.", F::PeripheralEdema, Present),
+    f("Crackles? effusion", F::Crackles, Possible),
+    f("Crackles? effusion", F::PleuralEffusion, Present),
+    // The plain negations beside them stay negated.
+    f("Chest: without crackles.", F::Crackles, Absent),
+    f("Not oedematous; no crackles.", F::Crackles, Absent),
+    f("Not without difficulty, no crackles.", F::Crackles, Absent),
     f("Nil PND, nil orthopnoea.", F::Orthopnea, Absent),
     f(
         "ROS negative for chest pain, dyspnea, orthopnea.",
@@ -459,4 +547,150 @@ fn class_alone_stays_unread_without_heart_failure_context() {
     // class; without NYHA, heart failure or "symptoms" beside it, it is not read.
     let e = ex("Class II indication for the procedure.");
     assert!(e.statements.iter().all(|s| s.kind != StatementKind::Nyha));
+}
+
+#[test]
+fn question_marks_on_abbreviations() {
+    // 04 §4.5 ("?LVF - CXR requested": possible) and 03 §3.1 (`LVF?` is the same).
+    for text in ["?LVF - CXR requested", "LVF? CXR requested.", "Imp: CCF?"] {
+        let e = ex(text);
+        let got: Vec<_> = e
+            .statements
+            .iter()
+            .filter(|s| s.kind == StatementKind::HeartFailure)
+            .map(|s| s.assertion)
+            .collect();
+        assert_eq!(got, [Possible], "{text:?}");
+    }
+    // The mark after one abbreviation leaves the next one alone.
+    let e = ex("LVF? ADHF.");
+    let got: Vec<_> = e
+        .statements
+        .iter()
+        .filter(|s| s.kind == StatementKind::Acuity)
+        .map(|s| (s.value.as_str(), s.assertion))
+        .collect();
+    assert_eq!(got, [("acute", Present)]);
+}
+
+#[test]
+fn decades_are_approximate_lower_bounds() {
+    // 03 §3.6 lists "SBP 90s"; 03 §3.1 says keep an approximate value and flag it. The
+    // decade's lower bound is the value (common practice, no source: "100s" is 100-109).
+    use tidemark::model::Qualifier;
+    let rows: &[(&str, MeasureConcept, f64)] = &[
+        ("BP 100s/60s", M::SystolicBp, 100.0),
+        ("BP 100s/60s", M::DiastolicBp, 60.0),
+        ("BP 110s over 70s", M::DiastolicBp, 70.0),
+        ("SBP 90s", M::SystolicBp, 90.0),
+    ];
+    for &(text, concept, value) in rows {
+        let e = ex(text);
+        let got: Vec<_> = e
+            .measurements
+            .iter()
+            .filter(|x| x.concept == concept)
+            .map(|x| (x.value, x.unit, x.qualifier))
+            .collect();
+        assert_eq!(
+            got,
+            [(value, Some("mm[Hg]"), Some(Qualifier::Approximate))],
+            "{text:?}"
+        );
+    }
+    // Only the number written with the decade is approximate.
+    let e = ex("BP 120/80s");
+    let q: Vec<_> = e.measurements.iter().map(|x| x.qualifier).collect();
+    assert_eq!(q, [None, Some(Qualifier::Approximate)]);
+    // A decade gives no unit or plausibility diagnostic the exact numbers do not.
+    let cfg = tidemark::Config::default();
+    let rules = |text: &str| {
+        let mut r: Vec<_> = tidemark::analyze(text, &cfg)
+            .diagnostics
+            .iter()
+            .map(|d| d.rule)
+            .collect();
+        r.sort_unstable();
+        r
+    };
+    let note = "Ward round, day 3 ADHF.\nObs: BP {sys}/{dia}, SBP {sys} overnight.\nPlan: continue furosemide.\n";
+    let with = |sys: &str, dia: &str| note.replace("{sys}", sys).replace("{dia}", dia);
+    assert_eq!(rules(&with("100s", "60s")), rules(&with("100", "60")));
+}
+
+#[test]
+fn the_later_value_of_a_course_is_the_current_one() {
+    // A course of two values: both are read and the later is the current one, so the
+    // note's trend runs from the first to the second. Sources per row.
+    enum S {
+        Weight,
+        Creatinine,
+        Potassium,
+    }
+    let rows: &[(&str, S, f64, f64)] = &[
+        // 01 §1.2 ("Cr 132 -> 149 umol/L") and 03 §3.1: an arrow means "to".
+        ("Cr 132 -> 149 umol/L, K 5.3", S::Creatinine, 132.0, 149.0),
+        ("Cr 118 → 131.", S::Creatinine, 118.0, 131.0),
+        ("K 5.3 -> 4.6", S::Potassium, 5.3, 4.6),
+        ("Weight 84.2 -> 82.1 kg", S::Weight, 84.2, 82.1),
+        // Common practice, no source: "from X to Y", "was X, now Y".
+        ("Creatinine from 132 to 149.", S::Creatinine, 132.0, 149.0),
+        ("K went from 5.8 to 4.9.", S::Potassium, 5.8, 4.9),
+        ("wt from 84.2 kg to 82.1 kg", S::Weight, 84.2, 82.1),
+        ("Cr was 132, now 149.", S::Creatinine, 132.0, 149.0),
+        ("K was 5.8 and is now 4.9.", S::Potassium, 5.8, 4.9),
+        (
+            "Potassium was 5.9, now at 5.1 mmol/L.",
+            S::Potassium,
+            5.9,
+            5.1,
+        ),
+        ("Wt was 84.2, now 82.1", S::Weight, 84.2, 82.1),
+        ("Weight was 84.2 kg, now 82.1 kg.", S::Weight, 84.2, 82.1),
+        // 1.2 and 1.6 mg/dL in the canonical µmol/L (x 88.4, 05 §5.3).
+        (
+            "Creatinine was 1.2 now 1.6 mg/dL.",
+            S::Creatinine,
+            1.2 * 88.4,
+            1.6 * 88.4,
+        ),
+    ];
+    let mut failures = Vec::new();
+    for (text, s, first, last) in rows {
+        let e = ex(text);
+        let t = tidemark::picture::build(&e).trends;
+        let (a, b, n) = match s {
+            S::Weight => (t.weight.first, t.weight.last, t.weight.points.len()),
+            S::Creatinine => (
+                t.creatinine.first,
+                t.creatinine.last,
+                t.creatinine.points.len(),
+            ),
+            S::Potassium => (
+                t.potassium.first,
+                t.potassium.last,
+                t.potassium.points.len(),
+            ),
+        };
+        let close = |x: Option<f64>, y: f64| x.is_some_and(|x| (x - y).abs() < 1e-6);
+        if n != 2 || !close(a, *first) || !close(b, *last) {
+            failures.push(format!(
+                "{text:?}: want {first} -> {last}, got {a:?} -> {b:?} ({n} points)"
+            ));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn now_after_a_value_is_its_time_word() {
+    // "K 5.8 now" places 5.8 today; it does not start another value.
+    let e = ex("K 5.8 now, recheck in the morning.");
+    let got: Vec<_> = e
+        .measurements
+        .iter()
+        .filter(|x| x.concept == M::Potassium)
+        .map(|x| (x.value, x.time_ref))
+        .collect();
+    assert_eq!(got, [(5.8, Some(tidemark::model::TimeRef::Today))]);
 }

@@ -695,6 +695,8 @@ fn blood_pressure(doc: &Doc, out: &mut Output, start: usize, end: usize) {
         }
         let mut qualifier = None;
         let mut nums = Vec::new();
+        // `100s/60s`: the decade's lower bound, flagged approximate.
+        let mut decades = [false; 2];
         let mut unit = None;
         let mut when = None;
         let rspan = c.as_span();
@@ -705,7 +707,13 @@ fn blood_pressure(doc: &Doc, out: &mut Output, start: usize, end: usize) {
                 Rule::bp_pair => {
                     rend = end + part.as_span().end();
                     for n in part.into_inner() {
-                        if let Some(v) = parse_number(n.as_str()) {
+                        if n.as_rule() == Rule::decade {
+                            if let Some(d) =
+                                nums.len().checked_sub(1).and_then(|i| decades.get_mut(i))
+                            {
+                                *d = true;
+                            }
+                        } else if let Some(v) = parse_number(n.as_str()) {
                             nums.push(v);
                         }
                     }
@@ -724,13 +732,13 @@ fn blood_pressure(doc: &Doc, out: &mut Output, start: usize, end: usize) {
         let rstart = end + rspan.start();
         let span_start = if first { start } else { rstart };
         first = false;
-        for (concept, value) in [
-            (MeasureConcept::SystolicBp, *sys),
-            (MeasureConcept::DiastolicBp, *dia),
+        for (concept, value, decade) in [
+            (MeasureConcept::SystolicBp, *sys, decades[0]),
+            (MeasureConcept::DiastolicBp, *dia, decades[1]),
         ] {
             let r = Reading {
                 value,
-                qualifier,
+                qualifier: qualifier.or(decade.then_some(Qualifier::Approximate)),
                 start: rstart,
                 end: rend,
                 unit_text: unit.clone().or_else(|| head.clone()),

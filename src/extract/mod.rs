@@ -5,7 +5,7 @@
 //!    label, finding term, context cue and statement term with its byte span;
 //! 2. [`measure`] runs the value grammar right after each measurement label, and
 //!    [`bare`] picks up values written without a label (`82.4 kg`, `98/60 mmHg`) and
-//!    small tables;
+//!    small tables, and `positional` reads unlabelled vitals lines by their order;
 //! 3. [`findings`] turns finding and statement terms into findings and statements;
 //! 4. every item gets its assertion context from [`crate::context`], its section and its
 //!    documented day ([`episodes`]).
@@ -17,6 +17,7 @@ pub mod lexicon;
 pub mod measure;
 pub mod meds;
 mod numbers;
+mod positional;
 
 use std::sync::OnceLock;
 
@@ -204,6 +205,7 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
     let mut out = measure::Output::default();
     measure::labelled(&doc, &mut out);
     bare::tables(&doc, &mut out);
+    positional::vitals_lines(&doc, &mut out);
     bare::unlabelled(&doc, &mut out);
     findings::findings(&doc, &mut out);
     findings::statements(&doc, &mut out);
