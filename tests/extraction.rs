@@ -150,6 +150,21 @@ fn time_words_date_the_value_they_sit_beside() {
     );
 }
 
+/// A second value after a comma with its own time word is the same test at another time,
+/// with or without a unit; a number of another size is not (common practice, no source).
+#[test]
+fn comma_values_with_time_words() {
+    assert_eq!(
+        values("creatinine peaked at 156, 121 on discharge", M::Creatinine),
+        [156.0, 121.0]
+    );
+    assert_eq!(
+        values("Creatinine 132 yesterday, 149 today", M::Creatinine),
+        [132.0, 149.0]
+    );
+    assert_eq!(values("K 4.2, 138 today", M::Potassium), [4.2]);
+}
+
 #[test]
 fn weight_tables_and_row_blocks() {
     let table = "Date        Weight (kg)  Urine (mL)  Net (mL)\n\

@@ -218,8 +218,18 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
                 }
             }
             Rule::chain | Rule::comma_item | Rule::step => {
+                let unitless_comma = c.as_rule() == Rule::comma_item
+                    && !c.clone().into_inner().any(|p| p.as_rule() == Rule::unit);
                 if let Some(r) = item_reading(c, base) {
-                    out.push(r);
+                    // `K 4.2, 138 today` is another test's value, not a second potassium:
+                    // a unitless reading after a comma must be within a factor of three of
+                    // the value before it (common practice, no source).
+                    let same_size = out.first().is_some_and(|main| {
+                        main.value > 0.0 && (1.0 / 3.0..=3.0).contains(&(r.value / main.value))
+                    });
+                    if !unitless_comma || same_size {
+                        out.push(r);
+                    }
                 }
             }
             _ => {}
