@@ -356,7 +356,12 @@ impl<'a> ContextEngine<'a> {
                         // "?S3", "? fluid overload" forward; "LVF?" backward, adjacent only.
                         // "?soft S3", "?small bilateral effusions": describing words may sit
                         // between.
-                        (before && !q_suffix && words <= 2 && gap_b - gap_a <= 24)
+                        // Not across a comma: "?LRTI, chest clear" queries the infection only.
+                        (before
+                            && !q_suffix
+                            && words <= 2
+                            && gap_b - gap_a <= 24
+                            && !self.text[gap_a..gap_b].contains(','))
                             || (after && gap_b == gap_a)
                     } else if before && litotes(&self.text[c.start..c.end]) {
                         // "not without crackles": the double negative qualifies the words
@@ -430,7 +435,10 @@ impl<'a> ContextEngine<'a> {
             ctx.assertion = Assertion::Hypothetical;
             ctx.cues.push(self.cue(&h, "hypothetical"));
         } else if let Some(n) = negated {
-            ctx.assertion = if possible.is_some() {
+            // Both a negation and a possibility reach the target: the nearer one before it
+            // decides ("possible pneumonia, no crackles": absent; "no ?crackles": possible).
+            let negation_nearer = possible.is_some_and(|p| p.end <= n.start && n.end <= start);
+            ctx.assertion = if possible.is_some() && !negation_nearer {
                 Assertion::Possible
             } else {
                 Assertion::Absent

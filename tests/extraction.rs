@@ -418,6 +418,20 @@ fn negation_family() {
         assertion(t, FindingConcept::Orthopnea),
         Some(Assertion::Absent)
     );
+    // A negation nearer the finding than a possibility cue decides (ConText: the nearest
+    // trigger's scope; 04-assertions.md), and a "?" does not query past a comma.
+    assert_eq!(
+        assertion("Possible pneumonia, no crackles.", FindingConcept::Crackles),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("?LRTI, chest clear", FindingConcept::Crackles),
+        Some(Assertion::Absent)
+    );
+    assert_eq!(
+        assertion("No ?crackles at the bases.", FindingConcept::Crackles),
+        Some(Assertion::Possible)
+    );
     // "unlikely" negates what it follows ("crackles unlikely") and, as "unlikely to be/have",
     // what comes after it (domain reference 04-assertions.md: "... unlikely", negation).
     assert_eq!(
