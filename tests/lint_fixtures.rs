@@ -61,3 +61,45 @@ fn fixtures_fire_and_stay_quiet() {
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
 }
+
+/// Wordings that already answer a rule keep it quiet; each note is read by hand.
+#[test]
+fn rules_stay_quiet_where_the_wording_answers_them() {
+    let dir = tempfile::tempdir().unwrap();
+    let cases = [
+        // An arrow chain is an ordered course (common practice, no source).
+        (
+            "weight-series-undated",
+            "Progress note\nHeart failure. Weight 90.2 kg -> 85.0 kg with IV furosemide.\n",
+        ),
+        // A discharge summary's plain `Meds:` list is the discharge medication list
+        // (discharge-note elements, domain reference 09-discharge-gdmt.md; the heading
+        // wording is common practice, no source).
+        (
+            "discharge-instructions-incomplete",
+            "DISCHARGE SUMMARY\nDiagnosis: acute on chronic HFrEF.\nDischarge weight 85.0 kg. \
+             Follow up HF clinic 2 weeks. Daily weights, 1.5 L fluid restriction, low salt \
+             diet, gentle walking, return if breathless or weight up 2 kg in 3 days.\n\
+             Meds: furosemide 40 mg od, bisoprolol 2.5 mg od.\n",
+        ),
+    ];
+    for (i, (rule, text)) in cases.iter().enumerate() {
+        let p = dir.path().join(format!("case-{i}.txt"));
+        std::fs::write(&p, text).unwrap();
+        let reported = rules_reported(&p);
+        assert!(
+            !reported.iter().any(|r| r == rule),
+            "{rule} fired on {text:?}: {reported:?}"
+        );
+    }
+    // The same weights with no course between them still fire.
+    let p = dir.path().join("undated.txt");
+    std::fs::write(
+        &p,
+        "Progress note\nHeart failure. Weights 90.2 kg, 85.0 kg.\n",
+    )
+    .unwrap();
+    assert!(rules_reported(&p)
+        .iter()
+        .any(|r| r == "weight-series-undated"));
+}

@@ -128,6 +128,31 @@ fn has_word(hay: &str, w: &str) -> bool {
     }
 }
 
+/// A discharge summary's plain `Meds:` list names the medicines the patient goes home on,
+/// unless its heading says they are the admission or usual ones (common practice, no source).
+fn discharge_meds_list(cx: &Ctx<'_>) -> bool {
+    cx.kind == DocKind::DischargeSummary
+        && cx.ex.sections.iter().any(|s| {
+            let title = s.title.to_ascii_lowercase();
+            s.kind == SectionKind::Medications
+                && ![
+                    "admission",
+                    "preadmission",
+                    "drug history",
+                    "dh",
+                    "regular",
+                    "usual",
+                ]
+                .iter()
+                .any(|w| has_phrase(&title, w))
+                && cx
+                    .ex
+                    .medications
+                    .iter()
+                    .any(|m| s.span.start <= m.span.start && m.span.end <= s.span.end)
+        })
+}
+
 fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
     if !super::hf_relevant(cx.ex) || cx.cfg.discharge.elements.is_empty() {
         return;
@@ -157,7 +182,9 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
     for &e in &cx.cfg.discharge.elements {
         let by_section = match e {
             DischargeElement::FollowUp => has_section(SectionKind::FollowUp),
-            DischargeElement::Medications => has_section(SectionKind::DischargeMedications),
+            DischargeElement::Medications => {
+                has_section(SectionKind::DischargeMedications) || discharge_meds_list(cx)
+            }
             _ => false,
         };
         let extra = cx.cfg.discharge.extra_words.get(&e);

@@ -20,7 +20,8 @@ const DOC: &str = "\
 Fires when a note gives two or more different weights that carry no date, no documented day,
 no clock time and no time reference (admission, yesterday, today, baseline, discharge,
 previous). One undated weight among dated ones is taken to be the note's own and does not fire,
-and \"now 78.4 kg (80.1 kg on admission)\" is anchored by its wording.
+\"now 78.4 kg (80.1 kg on admission)\" is anchored by its wording, and weights written as one
+course on one line (\"90.2 kg -> 85.0 kg\", \"from 90.2 to 85.0 kg\") are in order already.
 
 ## Why
 A trend, a daily change or a comparison with the target weight needs to know which weight came
@@ -44,6 +45,25 @@ fn anchored(cx: &Ctx<'_>, m: &Measurement) -> bool {
     value_date(cx.ex, m).is_some() || m.time.is_some() || m.time_ref.is_some()
 }
 
+/// `90.2 kg -> 85.0 kg`, `from 90.2 to 85.0 kg`: weights written as one course on one line
+/// are in order already (common practice, no source).
+fn one_ordered_chain(text: &str, weights: &[&Measurement]) -> bool {
+    let mut spans: Vec<_> = weights.iter().map(|m| m.span).collect();
+    spans.sort_by_key(|s| s.start);
+    spans.windows(2).all(|w| {
+        let between = text.get(w[0].end..w[1].start).unwrap_or("\n");
+        let words = between.to_ascii_lowercase();
+        between.len() <= 40
+            && !between.contains('\n')
+            && (["->", "→", "=>", "⇒", "—>"]
+                .iter()
+                .any(|a| between.contains(a))
+                || words
+                    .split(|c: char| !c.is_ascii_alphabetic())
+                    .any(|w| w == "to" || w == "then"))
+    })
+}
+
 fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
     let undated: Vec<&Measurement> = patient_values(cx.ex, MeasureConcept::Weight)
         .into_iter()
@@ -54,7 +74,7 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
     let distinct = undated
         .iter()
         .any(|m| (value(m) - value(first)).abs() > 0.05);
-    if undated.len() < 2 || !distinct {
+    if undated.len() < 2 || !distinct || one_ordered_chain(cx.text, &undated) {
         return;
     }
     let lines: Vec<String> = undated.iter().map(|m| at_line(&m.span)).collect();
