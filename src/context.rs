@@ -356,12 +356,14 @@ impl<'a> ContextEngine<'a> {
                         // "?S3", "? fluid overload" forward; "LVF?" backward, adjacent only.
                         // "?soft S3", "?small bilateral effusions": describing words may sit
                         // between.
-                        // Not across a comma: "?LRTI, chest clear" queries the infection only.
+                        // Not across a comma or a dash: "?LRTI, chest clear" and "?home
+                        // Friday - target weight 80 kg" query the first item only.
                         (before
                             && !q_suffix
                             && words <= 2
                             && gap_b - gap_a <= 24
-                            && !self.text[gap_a..gap_b].contains(','))
+                            && !self.text[gap_a..gap_b].contains([',', ';'])
+                            && !self.text[gap_a..gap_b].contains(" - "))
                             || (after && gap_b == gap_a)
                     } else if before && litotes(&self.text[c.start..c.end]) {
                         // "not without crackles": the double negative qualifies the words

@@ -472,6 +472,16 @@ fn negation_family() {
 
 #[test]
 fn possibility_family() {
+    // A "?" queries the item it stands before, not the next one after a dash or a comma
+    // (common practice, no source).
+    let e = ex("4. ?home Friday - target weight 80kg");
+    assert!(
+        e.statements
+            .iter()
+            .any(|s| s.kind == StatementKind::TargetWeight && s.assertion == Assertion::Present),
+        "{:?}",
+        e.statements
+    );
     assert_eq!(
         assertion("?S3", FindingConcept::S3),
         Some(Assertion::Possible)

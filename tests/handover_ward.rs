@@ -133,3 +133,52 @@ fn ward_day_snapshots() {
     let html = run("html");
     assert_eq!(html.matches("<section class=\"card\">").count(), 4);
 }
+
+/// An undated note's "yesterday" values are another day than its own: the weight series
+/// keeps all three weights and the balance is not shown as today's (worked out by hand).
+#[test]
+fn an_undated_notes_yesterday_is_its_own_day() {
+    let dir = tempfile::tempdir().expect("temp dir");
+    let note = dir.path().join("bed14.txt");
+    std::fs::write(
+        &note,
+        "Ward round Bed 14\nWt today 81.2 kg (yest 82.0 kg, adm 85.6 kg). FB -1.4L yesterday.\n",
+    )
+    .expect("write note");
+    let run = |format: &str| {
+        let out = Command::new(env!("CARGO_BIN_EXE_tidemark"))
+            .args(["handover", "--format", format])
+            .arg(&note)
+            .output()
+            .expect("tidemark runs");
+        String::from_utf8(out.stdout).expect("utf-8")
+    };
+    let v: serde_json::Value = serde_json::from_str(&run("json")).expect("json");
+    let p = &v["patients"][0];
+    let series: Vec<(String, f64)> = p["weight"]["points"]
+        .as_array()
+        .expect("weight points")
+        .iter()
+        .map(|pt| {
+            (
+                pt["label"].as_str().unwrap_or("").to_string(),
+                pt["value"].as_f64().unwrap_or(0.0),
+            )
+        })
+        .collect();
+    assert_eq!(
+        series,
+        [
+            ("adm".to_string(), 85.6),
+            ("yest".to_string(), 82.0),
+            ("note 1".to_string(), 81.2)
+        ]
+    );
+    assert!(
+        p["fluid_balance"]["today_ml"].is_null(),
+        "{}",
+        p["fluid_balance"]
+    );
+    let text = run("text");
+    assert!(text.contains("today not written; yest -1400 mL"), "{text}");
+}

@@ -737,17 +737,41 @@ fn short_date(iso: &str) -> String {
     }
 }
 
+/// The sort key of an undated value that belongs to its note's own day.
+fn is_note_day_key(key: &str) -> bool {
+    key.starts_with('~') && key.ends_with("-3")
+}
+
 /// One point per day (the last value written for it), undated admission values first.
 fn daily_series(notes: &[NoteRef], concept: MeasureConcept) -> Vec<SeriesPoint> {
+    daily_points(notes, concept)
+        .into_iter()
+        .map(|(_, p)| p)
+        .collect()
+}
+
+/// [`daily_series`] with each point's sort key: a date, `""` for admission, or for an
+/// undated value `~NNNN-R` (note number, then 1 previous, 2 yesterday, 3 the note's day).
+fn daily_points(notes: &[NoteRef], concept: MeasureConcept) -> Vec<(String, SeriesPoint)> {
     let mut points: Vec<(String, SeriesPoint)> = Vec::new();
     for e in entries(notes, concept) {
         let date = entry_date(&e, notes);
+        // An undated note's "yesterday" and "previous" values are other days than its own.
+        let note = if notes.len() == 1 {
+            String::new()
+        } else {
+            format!("note {} ", e.note + 1)
+        };
         let (key, label) = match (&date, e.m.time_ref) {
             (Some(d), _) => (d.clone(), short_date(d)),
             (None, Some(TimeRef::Admission) | Some(TimeRef::Baseline)) => {
                 (String::new(), "adm".to_string())
             }
-            (None, _) => (format!("~{:04}", e.note), format!("note {}", e.note + 1)),
+            (None, Some(TimeRef::Previous)) => (format!("~{:04}-1", e.note), format!("{note}prev")),
+            (None, Some(TimeRef::Yesterday)) => {
+                (format!("~{:04}-2", e.note), format!("{note}yest"))
+            }
+            (None, _) => (format!("~{:04}-3", e.note), format!("note {}", e.note + 1)),
         };
         let p = SeriesPoint {
             date,
@@ -763,7 +787,7 @@ fn daily_series(notes: &[NoteRef], concept: MeasureConcept) -> Vec<SeriesPoint> 
         }
     }
     points.sort_by(|a, b| a.0.cmp(&b.0));
-    points.into_iter().map(|(_, p)| p).collect()
+    points
 }
 
 fn weight_series(notes: &[NoteRef]) -> Option<WeightSeries> {
@@ -806,17 +830,23 @@ fn weight_series(notes: &[NoteRef]) -> Option<WeightSeries> {
 }
 
 fn fluid_balance(notes: &[NoteRef], today: Option<&str>) -> Option<FluidBalance> {
-    let days = daily_series(notes, MeasureConcept::FluidBalance);
-    if days.is_empty() {
+    let keyed = daily_points(notes, MeasureConcept::FluidBalance);
+    if keyed.is_empty() {
         return None;
     }
     let today_ml = match today {
-        Some(t) => days
+        Some(t) => keyed
             .iter()
-            .find(|d| d.date.as_deref() == Some(t))
-            .map(|d| d.value),
-        None => days.last().map(|d| d.value),
+            .find(|(_, d)| d.date.as_deref() == Some(t))
+            .map(|(_, d)| d.value),
+        // Undated notes: the last balance of a note's own day, not its "yesterday".
+        None => keyed
+            .iter()
+            .rev()
+            .find(|(k, _)| is_note_day_key(k))
+            .map(|(_, d)| d.value),
     };
+    let days: Vec<SeriesPoint> = keyed.into_iter().map(|(_, p)| p).collect();
     let dated: Vec<&SeriesPoint> = days.iter().filter(|d| d.date.is_some()).collect();
     let cumulative_ml = (!dated.is_empty()).then(|| dated.iter().map(|d| d.value).sum());
     let note = format!(

@@ -216,10 +216,19 @@ pub fn rows(p: &PatientSheet) -> Vec<Row> {
         "Balance",
         vec![match &p.fluid_balance {
             Some(f) => {
-                let today = f
-                    .today_ml
-                    .map(|v| format!("today {} mL", signed(v)))
-                    .unwrap_or_else(|| "today not written".into());
+                // An undated "yesterday" balance is shown as such, not as today's.
+                let undated_before = f
+                    .days
+                    .iter()
+                    .rev()
+                    .find(|d| d.date.is_none() && d.label.ends_with("yest"));
+                let today = match (f.today_ml, undated_before) {
+                    (Some(v), _) => format!("today {} mL", signed(v)),
+                    (None, Some(d)) => {
+                        format!("today not written; {} {} mL", d.label, signed(d.value))
+                    }
+                    (None, None) => "today not written".into(),
+                };
                 let days = f.days.iter().filter(|d| d.date.is_some()).count();
                 match f.cumulative_ml {
                     Some(c) => format!("{today}; cumulative {} mL over {days} day(s)", signed(c)),
