@@ -328,18 +328,7 @@ pub fn rows(p: &PatientSheet) -> Vec<Row> {
         if p.to_check.is_empty() {
             vec!["no lint findings".into()]
         } else {
-            p.to_check
-                .iter()
-                .map(|c| {
-                    let from = p.notes.get(c.note).map(note_label).unwrap_or_default();
-                    let sev = match c.severity {
-                        crate::lint::Severity::Error => "error",
-                        crate::lint::Severity::Warning => "warning",
-                        crate::lint::Severity::Info => "info",
-                    };
-                    format!("- [{sev}] {}: {} ({from})", c.rule, c.message)
-                })
-                .collect()
+            check_lines(p)
         },
     ));
     out
@@ -420,4 +409,47 @@ pub fn write<W: Write>(out: &mut W, sheet: &Sheet) -> io::Result<()> {
         }
     }
     Ok(())
+}
+
+/// The lint findings of one patient, one line each, except that a note's values written
+/// without a unit are one line: a sheet lists what to check, the lint output each value.
+fn check_lines(p: &PatientSheet) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut grouped: Vec<usize> = Vec::new();
+    for c in &p.to_check {
+        let from = p.notes.get(c.note).map(note_label).unwrap_or_default();
+        let sev = match c.severity {
+            crate::lint::Severity::Error => "error",
+            crate::lint::Severity::Warning => "warning",
+            crate::lint::Severity::Info => "info",
+        };
+        if c.rule == "unit-missing" {
+            if grouped.contains(&c.note) {
+                continue;
+            }
+            let same: Vec<&crate::handover::sheet::Check> = p
+                .to_check
+                .iter()
+                .filter(|o| o.rule == c.rule && o.note == c.note)
+                .collect();
+            if same.len() > 1 {
+                grouped.push(c.note);
+                let mut lines: Vec<u32> =
+                    same.iter().filter_map(|o| o.span.map(|s| s.line)).collect();
+                lines.dedup();
+                let lines: Vec<String> = lines.iter().map(u32::to_string).collect();
+                let at = if lines.len() == 1 { "line" } else { "lines" };
+                out.push(format!(
+                    "- [{sev}] {}: {} values have no unit written ({at} {}); each was read in \
+                     its usual unit, listed by `tidemark lint` ({from})",
+                    c.rule,
+                    same.len(),
+                    lines.join(", ")
+                ));
+                continue;
+            }
+        }
+        out.push(format!("- [{sev}] {}: {} ({from})", c.rule, c.message));
+    }
+    out
 }
