@@ -541,11 +541,78 @@ pub fn statements(doc: &Doc, out: &mut Output) {
                 push(out, StatementKind::Perfusion, perf, start, end);
             }
             StatementKey::Hypertension => push(out, StatementKind::Hypertension, value, start, end),
-            StatementKey::Ckd => push(out, StatementKind::Ckd, value, start, end),
+            StatementKey::Ckd => {
+                let stage = if value == "esrd" {
+                    "esrd".to_string()
+                } else {
+                    ckd_stage(doc.text, start, end)
+                };
+                push(out, StatementKind::Ckd, &stage, start, end)
+            }
             StatementKey::LvFunction => push(out, StatementKind::LvFunction, value, start, end),
         }
     }
     combine_acuity(&mut out.statements);
+}
+
+/// The stage written with a CKD term: after it (`CKD 4`, `CKD stage 3b`, `CKD G3a`,
+/// `chronic kidney disease stage IV`) or before it (`stage 4 CKD`); `unstaged` otherwise.
+/// Stages 1-5 with 3a/3b, in Arabic or Roman numerals (KDIGO 2012 G categories; the Roman
+/// forms are common practice, no source).
+fn ckd_stage(text: &str, start: usize, end: usize) -> String {
+    fn stage_token(s: &str) -> Option<String> {
+        let s = s.trim_start();
+        let word: String = s
+            .chars()
+            .take_while(|c| c.is_ascii_alphanumeric())
+            .collect::<String>()
+            .to_ascii_lowercase();
+        let stage = match word.as_str() {
+            "1" | "i" => "1",
+            "2" | "ii" => "2",
+            "3" | "iii" => "3",
+            "3a" | "iiia" => "3a",
+            "3b" | "iiib" => "3b",
+            "4" | "iv" => "4",
+            "5" | "v" => "5",
+            _ => return None,
+        };
+        Some(stage.to_string())
+    }
+    let mut cut = end.saturating_add(24).min(text.len());
+    while !text.is_char_boundary(cut) {
+        cut -= 1;
+    }
+    let after = text.get(end..cut).unwrap_or("");
+    let after = after.trim_start_matches([' ', '(', ':', '-']);
+    let lower = after.to_ascii_lowercase();
+    let named = ["stage", "stg", "st.", "grade", "g"].iter().find_map(|w| {
+        lower
+            .strip_prefix(w)
+            .map(|r| &after[after.len() - r.len()..])
+    });
+    // A bare Roman numeral is not a stage: `CKD IV furosemide`.
+    let rest = named.unwrap_or(after);
+    if named.is_some() || rest.starts_with(|c: char| c.is_ascii_digit()) {
+        if let Some(s) = stage_token(rest) {
+            return s;
+        }
+    }
+    // `stage 4 CKD`.
+    let mut from = start.saturating_sub(12);
+    while !text.is_char_boundary(from) {
+        from += 1;
+    }
+    let before = text.get(from..start).unwrap_or("");
+    let lower = before.to_ascii_lowercase();
+    if let Some(i) = lower.rfind("stage") {
+        if let Some(s) = stage_token(&before[i + 5..]) {
+            if before[i + 5..].trim().len() <= 4 {
+                return s;
+            }
+        }
+    }
+    "unstaged".to_string()
 }
 
 /// "acute decompensated chronic heart failure": an acute and a chronic word on one heart

@@ -1214,7 +1214,14 @@ fn plan(notes: &[NoteRef]) -> Option<Plan> {
 fn to_check(notes: &[NoteRef]) -> Vec<Check> {
     let mut out = Vec::new();
     for (i, n) in notes.iter().enumerate() {
-        for d in &n.analysis.diagnostics {
+        // A coding suggestion is for the coder, not something to check at handover.
+        let suggestion = crate::lint::rules::hf_code_suggestion::RULE.id;
+        for d in n
+            .analysis
+            .diagnostics
+            .iter()
+            .filter(|d| d.rule != suggestion)
+        {
             out.push(Check {
                 rule: d.rule.to_string(),
                 severity: d.severity,

@@ -41,7 +41,49 @@ pub const CODES: &[(&str, &str)] = &[
         "I50.43",
         "Acute on chronic combined systolic (congestive) and diastolic (congestive) heart failure",
     ),
+    // Hypertension combination codes (category I11 and I13; domain reference 08-icd10cm.md
+    // §8.2, which gives these titles).
+    ("I11.0", "Hypertensive heart disease with heart failure"),
+    (
+        "I13.0",
+        "Hypertensive heart and chronic kidney disease with heart failure and stage 1 through \
+         stage 4 chronic kidney disease, or unspecified chronic kidney disease",
+    ),
+    (
+        "I13.2",
+        "Hypertensive heart and chronic kidney disease with heart failure and with stage 5 \
+         chronic kidney disease, or end stage renal disease",
+    ),
+    // Chronic kidney disease stages (category N18; codes from the domain reference §8.2,
+    // titles from memory of the tabular list, for a coder to confirm).
+    ("N18.1", "Chronic kidney disease, stage 1"),
+    ("N18.2", "Chronic kidney disease, stage 2 (mild)"),
+    ("N18.30", "Chronic kidney disease, stage 3 unspecified"),
+    ("N18.31", "Chronic kidney disease, stage 3a"),
+    ("N18.32", "Chronic kidney disease, stage 3b"),
+    ("N18.4", "Chronic kidney disease, stage 4 (severe)"),
+    ("N18.5", "Chronic kidney disease, stage 5"),
+    ("N18.6", "End stage renal disease"),
+    ("N18.9", "Chronic kidney disease, unspecified"),
 ];
+
+/// The N18 code of a documented CKD stage (`3a`, `4`, `unstaged`; `esrd` for end-stage
+/// wording). Stage and ESRD together give N18.6 only (ICD-10-CM Official Guidelines
+/// I.C.14.a, domain reference 08-icd10cm.md).
+pub fn ckd_code(stage: &str) -> Option<&'static str> {
+    Some(match stage.trim().to_ascii_lowercase().as_str() {
+        "1" | "i" => "N18.1",
+        "2" | "ii" => "N18.2",
+        "3" | "iii" => "N18.30",
+        "3a" | "iiia" => "N18.31",
+        "3b" | "iiib" => "N18.32",
+        "4" | "iv" => "N18.4",
+        "5" | "v" => "N18.5",
+        "esrd" => "N18.6",
+        "unstaged" | "" => "N18.9",
+        _ => return None,
+    })
+}
 
 /// The title of a code in [`CODES`].
 pub fn title(code: &str) -> Option<&'static str> {

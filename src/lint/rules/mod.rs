@@ -1,8 +1,10 @@
 //! One module per rule; [`ALL`] is the registry in listing order.
 
+pub mod ckd_stage_unspecified;
 pub mod discharge_instructions_incomplete;
 pub mod diuretic_plan_missing;
 pub mod hf_acuity_unspecified;
+pub mod hf_code_suggestion;
 pub mod hf_type_unspecified;
 pub mod lvef_missing;
 pub mod nyha_missing;
@@ -33,6 +35,8 @@ pub static ALL: &[Rule] = &[
     value_implausible::RULE,
     hf_type_unspecified::RULE,
     hf_acuity_unspecified::RULE,
+    ckd_stage_unspecified::RULE,
+    hf_code_suggestion::RULE,
     volume_status_contradiction::RULE,
     weight_gain_unaddressed::RULE,
     diuretic_plan_missing::RULE,
