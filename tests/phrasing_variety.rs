@@ -654,6 +654,18 @@ fn the_later_value_of_a_course_is_the_current_one() {
             1.2 * 88.4,
             1.6 * 88.4,
         ),
+        // Common practice, no source: the latest value first, then the earlier one it is
+        // compared with ("X, was Y"); the first stays the latest.
+        ("Wt 82.1 kg, was 84.2 kg", S::Weight, 84.2, 82.1),
+        ("Cr 149, was 132", S::Creatinine, 132.0, 149.0),
+        ("K 4.1, was 5.2.", S::Potassium, 5.2, 4.1),
+        // 04 §4.3 lists "previously" as a historical cue; here it dates the value it stands
+        // before, not the one ahead of it (04 §4.2: a trigger's scope runs forward to the
+        // end of its clause).
+        ("K 4.1, previously 5.2", S::Potassium, 5.2, 4.1),
+        ("Cr 149 (previously 132)", S::Creatinine, 132.0, 149.0),
+        ("weight 80 kg, previously 84 kg", S::Weight, 84.0, 80.0),
+        ("Cr 149, prev 132", S::Creatinine, 132.0, 149.0),
     ];
     let mut failures = Vec::new();
     for (text, s, first, last) in rows {
@@ -680,6 +692,55 @@ fn the_later_value_of_a_course_is_the_current_one() {
         }
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn an_earlier_value_after_the_latest_keeps_the_latest_current() {
+    // Common practice, no source ("X, was Y"), and 04 §4.3 ("previously" is a historical
+    // cue) with 04 §4.2 (its scope runs forward): the first value is today's, the second
+    // is marked as the earlier one.
+    use tidemark::model::TimeRef;
+    let rows: &[(&str, MeasureConcept, f64, f64)] = &[
+        ("Wt 82.1 kg, was 84.2 kg", M::Weight, 82.1, 84.2),
+        ("Cr 149, was 132", M::Creatinine, 149.0, 132.0),
+        ("K 4.1, previously 5.2", M::Potassium, 4.1, 5.2),
+        ("Cr 149 (previously 132)", M::Creatinine, 149.0, 132.0),
+        ("weight 80 kg, previously 84 kg", M::Weight, 80.0, 84.0),
+    ];
+    let mut failures = Vec::new();
+    for &(text, concept, latest, earlier) in rows {
+        let e = ex(text);
+        let got: Vec<_> = e
+            .measurements
+            .iter()
+            .filter(|x| x.concept == concept)
+            .map(|x| (x.value, x.temporality, x.time_ref))
+            .collect();
+        let ok = got.len() == 2
+            && got[0].0 == latest
+            && got[0].1 == Current
+            && got[0].2.is_none()
+            && got[1].0 == earlier
+            && got[1].2 == Some(TimeRef::Previous);
+        if !ok {
+            failures.push(format!("{text:?}: got {got:?}"));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn a_comma_was_before_another_test_is_not_an_earlier_value() {
+    // Common practice, no source: a number of another size after "was" is not the same
+    // test (the same factor-of-three check as a comma value with a time word).
+    let e = ex("K 4.2, was 138 on the gas");
+    let k: Vec<_> = e
+        .measurements
+        .iter()
+        .filter(|x| x.concept == M::Potassium)
+        .map(|x| x.value)
+        .collect();
+    assert_eq!(k, [4.2]);
 }
 
 #[test]
