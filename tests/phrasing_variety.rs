@@ -418,6 +418,32 @@ const FINDINGS: &[Find] = &[
         F::Orthopnea,
         Absent,
     ),
+    // 03 §3.1 ("CVS: HS I+II+0", a template negative) and 04 §4.3 (negation, template):
+    // the heart sounds heard, with "0" for no added sound; 02 §2.2 ("HS I+II+S3"). The
+    // spacing, Arabic numerals, `S1`/`S2` and a third sound written `III`: common practice,
+    // no source.
+    f("CVS: HS I+II+0", F::S3, Absent),
+    f("HS I + II + 0", F::S3, Absent),
+    f("HS I+II+0", F::S3, Absent),
+    f("HS I +II+ 0.", F::S3, Absent),
+    f("Heart sounds: I + II + 0", F::S3, Absent),
+    f("HS 1+2+0", F::S3, Absent),
+    f("HS 1 + 2 + 0", F::S3, Absent),
+    f("HS I II 0", F::S3, Absent),
+    f("HS S1 + S2 + 0", F::S3, Absent),
+    f("HS: I+II+nil", F::S3, Absent),
+    f("S1 + S2 + 0, no murmurs", F::S3, Absent),
+    f("S1 S2 no added sounds", F::S3, Absent),
+    f("HS I + II + S3", F::S3, Present),
+    f("HS I+II+S3", F::S3, Present),
+    f("HS 1+2+S3", F::S3, Present),
+    f("Heart sounds I + II + III", F::S3, Present),
+    f("HS I + II + ?S3", F::S3, Possible),
+    // 04 §4.3: another person.
+    Find {
+        experiencer: Other,
+        ..f("FH: father HS I+II+S3.", F::S3, Present)
+    },
     // 04 §4.3: historical cues, a past year among them.
     Find {
         temporality: Historical,
@@ -481,6 +507,28 @@ fn finding_phrasings() {
         }
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn heart_sound_shorthand_gives_one_finding_or_none() {
+    // 02 §2.2 ("HS I+II+S3"): one third heart sound, not one per term in the shorthand.
+    let s3 = |text: &str| -> Vec<(Assertion, String)> {
+        ex(text)
+            .findings
+            .iter()
+            .filter(|x| x.concept == F::S3)
+            .map(|x| (x.assertion, x.text.clone()))
+            .collect()
+    };
+    assert_eq!(
+        s3("HS I + II + S3"),
+        [(Present, "HS I + II + S3".to_string())]
+    );
+    assert_eq!(s3("HS 1+2+0"), [(Absent, "HS 1+2+0".to_string())]);
+    // Common practice, no source: an S4 is not an S3, and "hs" without the sounds after it
+    // (`furosemide at hs`) is no heart-sound finding.
+    assert_eq!(s3("HS I + II + S4"), []);
+    assert_eq!(s3("Furosemide 40 mg at hs. HR 80"), []);
 }
 
 #[test]
