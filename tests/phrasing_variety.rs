@@ -803,3 +803,61 @@ fn now_after_a_value_is_its_time_word() {
         .collect();
     assert_eq!(got, [(5.8, Some(tidemark::model::TimeRef::Today))]);
 }
+
+#[test]
+fn heart_failure_of_someone_else_is_not_the_patients() {
+    // 04 §4.3 (experiencer other: mother, father, brother, FH, "her husband has") and 04 §4.5
+    // ("Mother had heart failure", "FH: father - HFrEF" are experiencer other): reported as
+    // another person's, and neither classified nor linted as the patient's heart failure.
+    use tidemark::lint::LintConfig;
+    const HF_RULES: &[&str] = &[
+        "hf-type-unspecified",
+        "hf-acuity-unspecified",
+        "lvef-missing",
+        "nyha-missing",
+        "weight-missing",
+        "volume-status-missing",
+    ];
+    let lint = |text: &str| -> (Extraction, Vec<String>) {
+        let e = ex(text);
+        let pic = tidemark::picture::build(&e);
+        let c = &pic.classifications;
+        assert!(
+            c.hf_type.is_none() && c.acuity.is_none() && c.nyha_class.is_none(),
+            "{text:?}: classified {c:?}"
+        );
+        let rules = tidemark::lint::run(text, &e, &pic, &LintConfig::default())
+            .into_iter()
+            .map(|d| d.rule.to_string())
+            .filter(|r| HF_RULES.contains(&r.as_str()))
+            .collect();
+        (e, rules)
+    };
+    let rows = [
+        "Ward round\nPatient's brother has heart failure.\nBP 120/80, HR 80.\n",
+        "Ward round\nFH: mother had heart failure.\nBP 120/80, HR 80.\n",
+        "Ward round\nFH: father - HFrEF, died age 60.\nBP 120/80.\n",
+        "Ward round\nHer brother has decompensated HFrEF, NYHA III.\nBP 120/80.\n",
+        "Ward round\nMum has CCF.\nBP 120/80.\n",
+    ];
+    let mut failures = Vec::new();
+    for text in rows {
+        let (e, rules) = lint(text);
+        let hf: Vec<_> = e
+            .statements
+            .iter()
+            .filter(|s| s.kind == StatementKind::HeartFailure)
+            .map(|s| s.experiencer)
+            .collect();
+        if hf.is_empty() || hf.iter().any(|&x| x != Other) || !rules.is_empty() {
+            failures.push(format!("{text:?}: heart failure {hf:?}, rules {rules:?}"));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+    // The patient's own heart failure, written the same way, is linted.
+    let (_, rules) = lint("Ward round\nImp: heart failure.\nBP 120/80.\n");
+    assert!(
+        rules.contains(&"hf-type-unspecified".to_string()),
+        "{rules:?}"
+    );
+}
