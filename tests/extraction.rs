@@ -286,6 +286,71 @@ fn labs_with_and_without_units() {
     assert!(values("repeat lactate 22:00", M::Lactate).is_empty());
 }
 
+/// An arrow chain with no unit anywhere gives every value, each in the unit its size and
+/// label imply, and the trend runs through all of them in order. 03 §3.1 (an arrow means
+/// "to" or "then") and 01 §1.2 ("Cr 132 -> 149 umol/L"); the unit a creatinine of 1-2 is
+/// written in (mg/dL) is common practice, no source; 1.2, 1.6 and 1.9 mg/dL x 88.4 (05
+/// §5.3, CONVSI) are 106.08, 141.44 and 167.96 umol/L.
+#[test]
+fn unitless_chains_give_every_value() {
+    let rows: &[(&str, MeasureConcept, &str, &[f64])] = &[
+        (
+            "Creatinine 1.2 -> 1.6 -> 1.9",
+            M::Creatinine,
+            "mg/dL",
+            &[106.08, 141.44, 167.96],
+        ),
+        (
+            "Cr 1.2 → 1.6 → 1.9 → 2.1",
+            M::Creatinine,
+            "mg/dL",
+            &[106.08, 141.44, 167.96, 185.64],
+        ),
+        (
+            "Cr 132 -> 149 -> 161",
+            M::Creatinine,
+            "umol/L",
+            &[132.0, 149.0, 161.0],
+        ),
+        ("Na 131 -> 134", M::Sodium, "mmol/L", &[131.0, 134.0]),
+        ("K 5.3->4.9->4.4", M::Potassium, "mmol/L", &[5.3, 4.9, 4.4]),
+        (
+            "Creatinine 1.2 -> 1.6 -> 1.9, K 4.1",
+            M::Creatinine,
+            "mg/dL",
+            &[106.08, 141.44, 167.96],
+        ),
+    ];
+    let mut failures = Vec::new();
+    for &(text, concept, unit, want) in rows {
+        let e = ex(text);
+        let units: Vec<_> = e
+            .measurements
+            .iter()
+            .filter(|m| m.concept == concept)
+            .map(|m| (m.unit, m.unit_inferred))
+            .collect();
+        let got = values(text, concept);
+        let trend = tidemark::picture::build(&e).trends;
+        let points = match concept {
+            M::Creatinine => trend.creatinine.points.len(),
+            M::Potassium => trend.potassium.points.len(),
+            _ => want.len(),
+        };
+        if got != want
+            || units
+                .iter()
+                .any(|&(u, inferred)| u != Some(unit) || !inferred)
+            || points != want.len()
+        {
+            failures.push(format!(
+                "{text:?}: got {got:?} {units:?}, {points} trend points"
+            ));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
 #[test]
 fn inferred_units_are_flagged() {
     let e = ex("Wt 71.2. Cr 188.");

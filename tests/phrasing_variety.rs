@@ -418,6 +418,32 @@ const FINDINGS: &[Find] = &[
         F::Orthopnea,
         Absent,
     ),
+    // 03 §3.1 ("CVS: HS I+II+0", a template negative) and 04 §4.3 (negation, template):
+    // the heart sounds heard, with "0" for no added sound; 02 §2.2 ("HS I+II+S3"). The
+    // spacing, Arabic numerals, `S1`/`S2` and a third sound written `III`: common practice,
+    // no source.
+    f("CVS: HS I+II+0", F::S3, Absent),
+    f("HS I + II + 0", F::S3, Absent),
+    f("HS I+II+0", F::S3, Absent),
+    f("HS I +II+ 0.", F::S3, Absent),
+    f("Heart sounds: I + II + 0", F::S3, Absent),
+    f("HS 1+2+0", F::S3, Absent),
+    f("HS 1 + 2 + 0", F::S3, Absent),
+    f("HS I II 0", F::S3, Absent),
+    f("HS S1 + S2 + 0", F::S3, Absent),
+    f("HS: I+II+nil", F::S3, Absent),
+    f("S1 + S2 + 0, no murmurs", F::S3, Absent),
+    f("S1 S2 no added sounds", F::S3, Absent),
+    f("HS I + II + S3", F::S3, Present),
+    f("HS I+II+S3", F::S3, Present),
+    f("HS 1+2+S3", F::S3, Present),
+    f("Heart sounds I + II + III", F::S3, Present),
+    f("HS I + II + ?S3", F::S3, Possible),
+    // 04 §4.3: another person.
+    Find {
+        experiencer: Other,
+        ..f("FH: father HS I+II+S3.", F::S3, Present)
+    },
     // 04 §4.3: historical cues, a past year among them.
     Find {
         temporality: Historical,
@@ -481,6 +507,28 @@ fn finding_phrasings() {
         }
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn heart_sound_shorthand_gives_one_finding_or_none() {
+    // 02 §2.2 ("HS I+II+S3"): one third heart sound, not one per term in the shorthand.
+    let s3 = |text: &str| -> Vec<(Assertion, String)> {
+        ex(text)
+            .findings
+            .iter()
+            .filter(|x| x.concept == F::S3)
+            .map(|x| (x.assertion, x.text.clone()))
+            .collect()
+    };
+    assert_eq!(
+        s3("HS I + II + S3"),
+        [(Present, "HS I + II + S3".to_string())]
+    );
+    assert_eq!(s3("HS 1+2+0"), [(Absent, "HS 1+2+0".to_string())]);
+    // Common practice, no source: an S4 is not an S3, and "hs" without the sounds after it
+    // (`furosemide at hs`) is no heart-sound finding.
+    assert_eq!(s3("HS I + II + S4"), []);
+    assert_eq!(s3("Furosemide 40 mg at hs. HR 80"), []);
 }
 
 #[test]
@@ -654,6 +702,18 @@ fn the_later_value_of_a_course_is_the_current_one() {
             1.2 * 88.4,
             1.6 * 88.4,
         ),
+        // Common practice, no source: the latest value first, then the earlier one it is
+        // compared with ("X, was Y"); the first stays the latest.
+        ("Wt 82.1 kg, was 84.2 kg", S::Weight, 84.2, 82.1),
+        ("Cr 149, was 132", S::Creatinine, 132.0, 149.0),
+        ("K 4.1, was 5.2.", S::Potassium, 5.2, 4.1),
+        // 04 §4.3 lists "previously" as a historical cue; here it dates the value it stands
+        // before, not the one ahead of it (04 §4.2: a trigger's scope runs forward to the
+        // end of its clause).
+        ("K 4.1, previously 5.2", S::Potassium, 5.2, 4.1),
+        ("Cr 149 (previously 132)", S::Creatinine, 132.0, 149.0),
+        ("weight 80 kg, previously 84 kg", S::Weight, 84.0, 80.0),
+        ("Cr 149, prev 132", S::Creatinine, 132.0, 149.0),
     ];
     let mut failures = Vec::new();
     for (text, s, first, last) in rows {
@@ -683,6 +743,55 @@ fn the_later_value_of_a_course_is_the_current_one() {
 }
 
 #[test]
+fn an_earlier_value_after_the_latest_keeps_the_latest_current() {
+    // Common practice, no source ("X, was Y"), and 04 §4.3 ("previously" is a historical
+    // cue) with 04 §4.2 (its scope runs forward): the first value is today's, the second
+    // is marked as the earlier one.
+    use tidemark::model::TimeRef;
+    let rows: &[(&str, MeasureConcept, f64, f64)] = &[
+        ("Wt 82.1 kg, was 84.2 kg", M::Weight, 82.1, 84.2),
+        ("Cr 149, was 132", M::Creatinine, 149.0, 132.0),
+        ("K 4.1, previously 5.2", M::Potassium, 4.1, 5.2),
+        ("Cr 149 (previously 132)", M::Creatinine, 149.0, 132.0),
+        ("weight 80 kg, previously 84 kg", M::Weight, 80.0, 84.0),
+    ];
+    let mut failures = Vec::new();
+    for &(text, concept, latest, earlier) in rows {
+        let e = ex(text);
+        let got: Vec<_> = e
+            .measurements
+            .iter()
+            .filter(|x| x.concept == concept)
+            .map(|x| (x.value, x.temporality, x.time_ref))
+            .collect();
+        let ok = got.len() == 2
+            && got[0].0 == latest
+            && got[0].1 == Current
+            && got[0].2.is_none()
+            && got[1].0 == earlier
+            && got[1].2 == Some(TimeRef::Previous);
+        if !ok {
+            failures.push(format!("{text:?}: got {got:?}"));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn a_comma_was_before_another_test_is_not_an_earlier_value() {
+    // Common practice, no source: a number of another size after "was" is not the same
+    // test (the same factor-of-three check as a comma value with a time word).
+    let e = ex("K 4.2, was 138 on the gas");
+    let k: Vec<_> = e
+        .measurements
+        .iter()
+        .filter(|x| x.concept == M::Potassium)
+        .map(|x| x.value)
+        .collect();
+    assert_eq!(k, [4.2]);
+}
+
+#[test]
 fn now_after_a_value_is_its_time_word() {
     // "K 5.8 now" places 5.8 today; it does not start another value.
     let e = ex("K 5.8 now, recheck in the morning.");
@@ -693,4 +802,62 @@ fn now_after_a_value_is_its_time_word() {
         .map(|x| (x.value, x.time_ref))
         .collect();
     assert_eq!(got, [(5.8, Some(tidemark::model::TimeRef::Today))]);
+}
+
+#[test]
+fn heart_failure_of_someone_else_is_not_the_patients() {
+    // 04 §4.3 (experiencer other: mother, father, brother, FH, "her husband has") and 04 §4.5
+    // ("Mother had heart failure", "FH: father - HFrEF" are experiencer other): reported as
+    // another person's, and neither classified nor linted as the patient's heart failure.
+    use tidemark::lint::LintConfig;
+    const HF_RULES: &[&str] = &[
+        "hf-type-unspecified",
+        "hf-acuity-unspecified",
+        "lvef-missing",
+        "nyha-missing",
+        "weight-missing",
+        "volume-status-missing",
+    ];
+    let lint = |text: &str| -> (Extraction, Vec<String>) {
+        let e = ex(text);
+        let pic = tidemark::picture::build(&e);
+        let c = &pic.classifications;
+        assert!(
+            c.hf_type.is_none() && c.acuity.is_none() && c.nyha_class.is_none(),
+            "{text:?}: classified {c:?}"
+        );
+        let rules = tidemark::lint::run(text, &e, &pic, &LintConfig::default())
+            .into_iter()
+            .map(|d| d.rule.to_string())
+            .filter(|r| HF_RULES.contains(&r.as_str()))
+            .collect();
+        (e, rules)
+    };
+    let rows = [
+        "Ward round\nPatient's brother has heart failure.\nBP 120/80, HR 80.\n",
+        "Ward round\nFH: mother had heart failure.\nBP 120/80, HR 80.\n",
+        "Ward round\nFH: father - HFrEF, died age 60.\nBP 120/80.\n",
+        "Ward round\nHer brother has decompensated HFrEF, NYHA III.\nBP 120/80.\n",
+        "Ward round\nMum has CCF.\nBP 120/80.\n",
+    ];
+    let mut failures = Vec::new();
+    for text in rows {
+        let (e, rules) = lint(text);
+        let hf: Vec<_> = e
+            .statements
+            .iter()
+            .filter(|s| s.kind == StatementKind::HeartFailure)
+            .map(|s| s.experiencer)
+            .collect();
+        if hf.is_empty() || hf.iter().any(|&x| x != Other) || !rules.is_empty() {
+            failures.push(format!("{text:?}: heart failure {hf:?}, rules {rules:?}"));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+    // The patient's own heart failure, written the same way, is linted.
+    let (_, rules) = lint("Ward round\nImp: heart failure.\nBP 120/80.\n");
+    assert!(
+        rules.contains(&"hf-type-unspecified".to_string()),
+        "{rules:?}"
+    );
 }

@@ -265,7 +265,8 @@ pub fn findings(doc: &Doc, out: &mut Output) {
         }
         let mut detail = FindingDetail::default();
         let present = match polarity {
-            Polarity::Unassessable => continue,
+            // Resolved by the scan; a lead without its shorthand is no finding.
+            Polarity::Unassessable | Polarity::HeartSounds => continue,
             Polarity::Present => true,
             // "drowsy but orientated", "drowsy, oriented x3": the impairment is the finding.
             Polarity::Absent

@@ -73,6 +73,9 @@ pub enum Polarity {
     Pillows,
     /// "added sounds": S3 (or crackles, in a chest context), present unless negated.
     Added,
+    /// `HS`, `heart sounds`, `S1`: the lead of a heart-sound shorthand (`HS I+II+0`). The
+    /// scan turns it into a present or absent term over the whole shorthand, or drops it.
+    HeartSounds,
 }
 
 /// Context cue families (ConText).
@@ -209,6 +212,7 @@ fn parse_kind(fields: &[&'static str]) -> Option<Kind> {
                 "unassessable" => Polarity::Unassessable,
                 "pillows" => Polarity::Pillows,
                 "added" => Polarity::Added,
+                "sounds" => Polarity::HeartSounds,
                 _ => return None,
             };
             Kind::Finding(FindingConcept::from_name(arg(2))?, polarity)
@@ -341,6 +345,42 @@ fn boundary_ok(text: &str, start: usize, end: usize, kind: Kind) -> bool {
     true
 }
 
+/// The heart sounds written after a lead (`HS`, `heart sounds`, or `S1` itself), as template
+/// shorthand lists them: the first and second sound, then `0` or `nil` for no added sound,
+/// or the third sound (03 §3.1 and 04 §4.3 of the domain reference: `HS I+II+0` is a
+/// negative; 02 §2.2: `HS I+II+S3`). Spacing, separators and Roman or Arabic numerals vary
+/// (common practice, no source). Gives the span of the term and its polarity: absent over
+/// the whole shorthand, present over the whole shorthand, or over the third sound alone when
+/// a question mark stands before it (`HS I + II + ?S3`), so the mark can query it. An S4,
+/// or anything else after the second sound, gives nothing.
+fn heart_sounds(text: &str, start: usize, end: usize) -> Option<(usize, usize, Polarity)> {
+    static FIRST: OnceLock<regex::Regex> = OnceLock::new();
+    static REST: OnceLock<regex::Regex> = OnceLock::new();
+    let first = crate::extract::numbers::cached(
+        &FIRST,
+        r"(?i)^[ \t]*[:=\-]?[ \t]*(?:s[ \t]?)?(?:1|i)(?-u:\b)",
+    );
+    let rest = crate::extract::numbers::cached(
+        &REST,
+        r"(?i)^[ \t]*(?:[+,&/]|and(?-u:\b))?[ \t]*(?:s[ \t]?)?(?:2|ii)(?-u:\b)[ \t]*(?:[+,&/]|and(?-u:\b))?[ \t]*(?:(?P<none>0|nil|none)(?-u:\b)|(?P<q>\?[ \t]*)?(?P<third>(?:s[ \t]?)?(?:3|iii))(?-u:\b))",
+    );
+    let mut at = end;
+    if !text[start..end].ends_with('1') {
+        at += first.find(text.get(at..)?)?.end();
+    }
+    let c = rest.captures(text.get(at..)?)?;
+    if let Some(none) = c.name("none") {
+        return Some((start, at + none.end(), Polarity::Absent));
+    }
+    let third = c.name("third")?;
+    let from = if c.name("q").is_some() {
+        at + third.start()
+    } else {
+        start
+    };
+    Some((from, at + third.end(), Polarity::Present))
+}
+
 /// Scan a text for every lexicon term, resolved per layer.
 pub fn scan(text: &str) -> Vec<Hit> {
     let c = compiled();
@@ -366,6 +406,20 @@ pub fn scan(text: &str) -> Vec<Hit> {
     for m in c.sensitive.find_overlapping_iter(text) {
         push(m, &c.sensitive_ids);
     }
+    raw.retain_mut(|h| match h.kind {
+        Kind::Finding(concept, Polarity::HeartSounds) => match heart_sounds(text, h.start, h.end) {
+            Some((start, end, polarity)) => {
+                *h = Hit {
+                    start,
+                    end,
+                    kind: Kind::Finding(concept, polarity),
+                };
+                true
+            }
+            None => false,
+        },
+        _ => true,
+    });
     raw.sort_by(|a, b| {
         (a.kind.layer(), a.start, std::cmp::Reverse(a.end)).cmp(&(
             b.kind.layer(),

@@ -217,8 +217,8 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
                     }
                 }
             }
-            Rule::chain | Rule::comma_item | Rule::step => {
-                let unitless_comma = c.as_rule() == Rule::comma_item
+            Rule::chain | Rule::comma_item | Rule::earlier_item | Rule::step => {
+                let unitless_comma = matches!(c.as_rule(), Rule::comma_item | Rule::earlier_item)
                     && !c.clone().into_inner().any(|p| p.as_rule() == Rule::unit);
                 if let Some(r) = item_reading(c, base) {
                     // `K 4.2, 138 today` is another test's value, not a second potassium:
@@ -463,7 +463,8 @@ fn admission_cue(ctx: &crate::model::Context) -> Option<TimeRef> {
 
 /// `Weight 80 kg, 84 kg on admission`: a time cue after the value with another number in
 /// between dates that number, not this one (common practice, no source; ConText's scopes
-/// end at the nearest mention of the same kind, domain reference 04-assertions.md).
+/// end at the nearest mention of the same kind, domain reference 04-assertions.md). So does
+/// a cue written right before another number: `K 4.1, previously 5.2`.
 fn later_value_owns_time_cue(doc: &Doc, ctx: &mut crate::model::Context, end: usize) {
     use crate::model::Temporality;
     if ctx.temporality != Temporality::Historical || ctx.cues.iter().any(|c| c.family == "section")
@@ -479,11 +480,17 @@ fn later_value_owns_time_cue(doc: &Doc, ctx: &mut crate::model::Context, end: us
         return;
     }
     let all_beyond_a_number = historical.all(|c| {
+        let before_a_number = doc.text.get(c.span.end..).is_some_and(|after| {
+            after
+                .trim_start_matches([' ', '\t', ':'])
+                .starts_with(|ch: char| ch.is_ascii_digit())
+        });
         c.span.start >= end
-            && doc
-                .text
-                .get(end..c.span.start)
-                .is_some_and(|between| between.bytes().any(|b| b.is_ascii_digit()))
+            && (before_a_number
+                || doc
+                    .text
+                    .get(end..c.span.start)
+                    .is_some_and(|between| between.bytes().any(|b| b.is_ascii_digit())))
     });
     if all_beyond_a_number {
         ctx.temporality = Temporality::Current;
