@@ -600,6 +600,28 @@ fn historical_and_experiencer_families() {
         let (_, t, _) = finding(text, FindingConcept::Orthopnea).unwrap();
         assert_eq!(t, Temporality::Current, "{text}");
     }
+    // A family-history heading with its content on its line covers that line only: the
+    // examination on the next lines is the patient's (common practice, no source).
+    let text = "Ward round\nFH: father - HFrEF, died age 60\nBP 120/80. Oedema to knees.\n";
+    let (_, t, x) = finding(text, FindingConcept::PeripheralEdema).unwrap();
+    assert_eq!((t, x), (Temporality::Current, Experiencer::Patient));
+    let e = ex(text);
+    assert!(
+        e.measurements
+            .iter()
+            .all(|m| m.experiencer == Experiencer::Patient),
+        "{:?}",
+        e.measurements
+    );
+    // The father's age is not the patient's.
+    assert!(!e.statements.iter().any(|s| s.kind == StatementKind::Age));
+    // A heading alone on its line keeps its section to the next heading.
+    let (_, t, _) = finding(
+        "PMH:\nPleural effusion 2019\nAF",
+        FindingConcept::PleuralEffusion,
+    )
+    .unwrap();
+    assert_eq!(t, Temporality::Historical);
     let (_, _, x) = finding("Mother had ankle oedema.", FindingConcept::PeripheralEdema).unwrap();
     assert_eq!(x, Experiencer::Other);
     let (_, _, x) = finding(

@@ -690,7 +690,29 @@ pub fn patient_facts(doc: &Doc, out: &mut Output) {
         *sex = Some((s, e, v.to_string()));
     };
     let valid_age = |v: &str| v.parse::<u32>().ok().filter(|a| (16..=115).contains(a));
-    if let Some(c) = years.captures(text) {
+    // `FH: father - HFrEF, died age 60`: a relative's age, not the patient's.
+    let someone_else = |s: usize, e: usize| {
+        let in_family_history = doc
+            .section_of(s)
+            .is_some_and(|i| doc.sections[i].kind == crate::model::SectionKind::FamilyHistory);
+        let mut from = s.saturating_sub(24);
+        while !text.is_char_boundary(from) {
+            from += 1;
+        }
+        let before = text[from..s].to_ascii_lowercase();
+        in_family_history
+            || before.contains("died")
+            || before.contains("death")
+            || doc
+                .engine
+                .context(s, e, Target::Statement, false)
+                .experiencer
+                == crate::model::Experiencer::Other
+    };
+    let years = years
+        .captures_iter(text)
+        .find(|c| c.get(0).is_some_and(|m| !someone_else(m.start(), m.end())));
+    if let Some(c) = years {
         let m = c.get(0).expect("match");
         if let Some(a) = c
             .get(1)
@@ -741,7 +763,10 @@ pub fn patient_facts(doc: &Doc, out: &mut Output) {
         }
     }
     if age.is_none() {
-        if let Some(c) = age_label.captures(text) {
+        let labelled = age_label
+            .captures_iter(text)
+            .find(|c| c.get(0).is_some_and(|m| !someone_else(m.start(), m.end())));
+        if let Some(c) = labelled {
             let m = c.get(0).expect("match");
             if let Some(a) = c.get(1).or(c.get(2)).and_then(|g| valid_age(g.as_str())) {
                 age = Some((m.start(), m.end(), a.to_string()));

@@ -242,7 +242,12 @@ pub fn find(text: &str, index: &LineIndex) -> Vec<Section> {
         if header_end == start {
             continue;
         }
-        let end = heads.get(i + 1).map(|h| h.1).unwrap_or(text.len());
+        let mut end = heads.get(i + 1).map(|h| h.1).unwrap_or(text.len());
+        // Only family history: past-history lists often run on over unmarked lines
+        // ("PMH: IHD" then "CKD 3" then "AF"), relatives' rarely do.
+        if *kind == SectionKind::FamilyHistory {
+            end = end.min(inline_section_end(text, index, *header_end));
+        }
         out.push(Section {
             kind: *kind,
             title: text[*start..*header_end].trim_end().to_string(),
@@ -251,6 +256,29 @@ pub fn find(text: &str, index: &LineIndex) -> Vec<Section> {
         });
     }
     out
+}
+
+/// `FH: father - HFrEF` then `BP 120/80` on the next line: a family-history heading with
+/// its content on the same line covers that line and the indented or bulleted lines under it,
+/// not the examination that follows without a heading of its own (common practice, no
+/// source). A heading alone on its line keeps its section to the next heading.
+fn inline_section_end(text: &str, index: &LineIndex, header_end: usize) -> usize {
+    let line_no = index.line_of(header_end.saturating_sub(1));
+    let first = index.line_range(line_no);
+    if text[header_end.min(first.end)..first.end].trim().is_empty() {
+        return text.len();
+    }
+    let mut end = first.end;
+    for n in line_no + 1..index.line_count() {
+        let range = index.line_range(n);
+        let line = &text[range.clone()];
+        let continued = line.starts_with([' ', '\t', '-', '•', '*']) && !line.trim().is_empty();
+        if !continued {
+            break;
+        }
+        end = range.end;
+    }
+    end
 }
 
 /// Index of the section holding byte `offset`, if any.
