@@ -293,7 +293,7 @@ fn main() {
     // Editor latency: one 5 KB note, analysed and rendered as `extract --format json`.
     let mut g = gen_corpus::Generator::new(SEED ^ 5);
     let mut note = g.note(5 * 1024);
-    note.truncate(note.floor_char_boundary_compat(5 * 1024));
+    note.truncate(note.floor_char_boundary(5 * 1024));
     let doc = Doc {
         source: "five-kb.txt".into(),
         text: Some(note.clone()),
@@ -370,18 +370,4 @@ fn main() {
         println!("  missed: {m}");
     }
     let _ = std::io::stdout().flush();
-}
-
-trait FloorBoundary {
-    fn floor_char_boundary_compat(&self, i: usize) -> usize;
-}
-
-impl FloorBoundary for String {
-    fn floor_char_boundary_compat(&self, mut i: usize) -> usize {
-        i = i.min(self.len());
-        while !self.is_char_boundary(i) {
-            i -= 1;
-        }
-        i
-    }
 }

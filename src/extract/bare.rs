@@ -55,13 +55,16 @@ const NOT_A_VALUE_BEFORE: &[&str] = &[
     "below",
 ];
 
+/// Up to 24 bytes of the value's own line before `start`.
+fn line_before<'t>(doc: &Doc<'t>, start: usize) -> &'t str {
+    let from = start.saturating_sub(24).max(doc.line_at(start).start);
+    doc.text
+        .get(doc.text.ceil_char_boundary(from)..start)
+        .unwrap_or("")
+}
+
 fn preceded_by_change(doc: &Doc, start: usize) -> bool {
-    let line = doc.line_at(start);
-    let mut from = start.saturating_sub(24).max(line.start);
-    while !doc.text.is_char_boundary(from) {
-        from += 1;
-    }
-    let before = doc.text[from..start].to_ascii_lowercase();
+    let before = line_before(doc, start).to_ascii_lowercase();
     let tight = before.trim_end();
     tight.ends_with(['+', '-', '−', '↑', '↓', '~'])
         || NOT_A_VALUE_BEFORE.iter().any(|w| before.contains(w))
@@ -98,12 +101,7 @@ const LEADING_TIME_WORDS: &[&str] = &[
 
 /// The time a word right before `start` (on its line) gives an unlabelled value.
 fn leading_time_ref(doc: &Doc, start: usize) -> Option<crate::model::TimeRef> {
-    let line = doc.line_at(start);
-    let mut from = start.saturating_sub(24).max(line.start);
-    while !doc.text.is_char_boundary(from) {
-        from += 1;
-    }
-    let before = doc.text[from..start]
+    let before = line_before(doc, start)
         .trim_end_matches([' ', '\t', ':', '='])
         .to_ascii_lowercase();
     let word = LEADING_TIME_WORDS.iter().find(|w| {

@@ -580,11 +580,9 @@ fn ckd_stage(text: &str, start: usize, end: usize) -> String {
         };
         Some(stage.to_string())
     }
-    let mut cut = end.saturating_add(24).min(text.len());
-    while !text.is_char_boundary(cut) {
-        cut -= 1;
-    }
-    let after = text.get(end..cut).unwrap_or("");
+    let after = text
+        .get(end..text.floor_char_boundary(end.saturating_add(24)))
+        .unwrap_or("");
     let after = after.trim_start_matches([' ', '(', ':', '-']);
     let lower = after.to_ascii_lowercase();
     let named = ["stage", "stg", "st.", "grade", "g"].iter().find_map(|w| {
@@ -600,11 +598,9 @@ fn ckd_stage(text: &str, start: usize, end: usize) -> String {
         }
     }
     // `stage 4 CKD`.
-    let mut from = start.saturating_sub(12);
-    while !text.is_char_boundary(from) {
-        from += 1;
-    }
-    let before = text.get(from..start).unwrap_or("");
+    let before = text
+        .get(text.ceil_char_boundary(start.saturating_sub(12))..start)
+        .unwrap_or("");
     let lower = before.to_ascii_lowercase();
     if let Some(i) = lower.rfind("stage") {
         if let Some(s) = stage_token(&before[i + 5..]) {
@@ -695,11 +691,10 @@ pub fn patient_facts(doc: &Doc, out: &mut Output) {
         let in_family_history = doc
             .section_of(s)
             .is_some_and(|i| doc.sections[i].kind == crate::model::SectionKind::FamilyHistory);
-        let mut from = s.saturating_sub(24);
-        while !text.is_char_boundary(from) {
-            from += 1;
-        }
-        let before = text[from..s].to_ascii_lowercase();
+        let before = text
+            .get(text.ceil_char_boundary(s.saturating_sub(24))..s)
+            .unwrap_or("")
+            .to_ascii_lowercase();
         in_family_history
             || before.contains("died")
             || before.contains("death")

@@ -223,8 +223,10 @@ pub fn medications(text: &str, sections: &[Section]) -> Vec<Medication> {
             }
             _ => {}
         }
-        let start = floor_boundary(text, p.span_start.min(m.hit.start));
-        let end = floor_boundary(text, p.span_end.max(m.hit.end)).max(m.hit.end);
+        let start = text.floor_char_boundary(p.span_start.min(m.hit.start));
+        let end = text
+            .floor_char_boundary(p.span_end.max(m.hit.end))
+            .max(m.hit.end);
         out.push(Medication {
             drug: term
                 .generic
@@ -246,15 +248,6 @@ pub fn medications(text: &str, sections: &[Section]) -> Vec<Medication> {
         });
     }
     out
-}
-
-/// The nearest char boundary at or below `i`, within the text.
-fn floor_boundary(text: &str, i: usize) -> usize {
-    let mut i = i.min(text.len());
-    while !text.is_char_boundary(i) {
-        i -= 1;
-    }
-    i
 }
 
 /// A drug name found in the text.

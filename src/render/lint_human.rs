@@ -84,8 +84,8 @@ fn body(text: Option<&str>, d: &Diagnostic, color: bool) -> String {
             let a = span.start.clamp(start, end) - start;
             let b = span.end.clamp(start, end) - start;
             let b = if b <= a { (a + 1).min(src.len()) } else { b };
-            let a = floor_boundary(src, a);
-            let b = floor_boundary(src, b).max(a);
+            let a = src.floor_char_boundary(a);
+            let b = src.floor_char_boundary(b).max(a);
             elements.push(
                 Snippet::source(src)
                     .line_start(first as usize)
@@ -111,14 +111,6 @@ fn body(text: Option<&str>, d: &Diagnostic, color: bool) -> String {
         Renderer::plain()
     };
     renderer.render(&[group])
-}
-
-fn floor_boundary(s: &str, mut i: usize) -> usize {
-    i = i.min(s.len());
-    while !s.is_char_boundary(i) {
-        i -= 1;
-    }
-    i
 }
 
 /// Counts for the run summary.

@@ -76,10 +76,7 @@ fn other_cause(text: &str, hf: &[&Statement]) -> Option<String> {
         }
     }
     for s in hf {
-        let mut cut = s.span.end.saturating_add(50).min(text.len());
-        while !text.is_char_boundary(cut) {
-            cut -= 1;
-        }
+        let cut = text.floor_char_boundary(s.span.end.saturating_add(50));
         let after = lower.get(s.span.end..cut).unwrap_or("");
         for link in ["due to ", "secondary to ", "caused by "] {
             if let Some(i) = after.find(link) {
@@ -109,12 +106,8 @@ fn combined_wording(text: &str, stated: &Statement) -> Option<&'static str> {
     if own.contains("combined") || (own.contains("systolic") && own.contains("diastolic")) {
         return Some("I50.4");
     }
-    let mut cut = stated.span.end.saturating_add(40).min(text.len());
-    while !text.is_char_boundary(cut) {
-        cut -= 1;
-    }
     let after = text
-        .get(stated.span.end..cut)
+        .get(stated.span.end..text.floor_char_boundary(stated.span.end.saturating_add(40)))
         .unwrap_or("")
         .to_ascii_lowercase();
     let reduced = matches!(stated.value.as_str(), "hfref" | "systolic");
