@@ -92,6 +92,11 @@ fn hypertension_and_ckd_combinations() {
         suggested("PMH: HTN. ESRD.\nImp: chronic HFrEF.\n"),
         ["I13.2", "I50.22", "N18.6"]
     );
+    // A stage and ESRD together: N18.6 only (Official Guidelines I.C.14.a).
+    assert_eq!(
+        suggested("PMH: HTN. CKD stage 5, now ESRD on dialysis.\nImp: chronic HFrEF.\n"),
+        ["I13.2", "I50.22", "N18.6"]
+    );
     let text = "PMH: HTN. CKD.\nImp: chronic HFrEF.\n";
     assert_eq!(suggested(text), ["I13.0", "I50.22", "N18.9"]);
     assert!(diagnostics(text)

@@ -152,7 +152,7 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
         .iter()
         .map(|s| s.value.as_str())
         .max_by_key(|v| match *v {
-            "esrd" => 9,
+            "esrd" => 100,
             "unstaged" => 0,
             v => {
                 v.chars().next().and_then(|c| c.to_digit(10)).unwrap_or(0) * 2
