@@ -826,3 +826,33 @@ fn series_time_words_and_bare_targets() {
         .iter()
         .any(|s| s.kind == StatementKind::TargetWeight));
 }
+
+/// A weight series gives every value once, in order, whether or not each value has a date
+/// before it: a decimal weight (`82.1`) is not a day and month when no reading follows it.
+/// 03 §3.7 lists "Daily weights: 01/06 89.0, 02/06 87.4, 03/06 86.1"; the undated forms
+/// with one unit at the end are common practice, no source.
+#[test]
+fn weight_series_with_and_without_dates() {
+    let rows: &[(&str, &[f64])] = &[
+        ("Wt 82.1 kg, 84.2 kg", &[82.1, 84.2]),
+        ("Weights 82.1, 81.6, 80.9 kg", &[82.1, 81.6, 80.9]),
+        ("Weights 82.1; 81.6; 80.9 kg", &[82.1, 81.6, 80.9]),
+        ("Wt 86.1, 85.4 kg", &[86.1, 85.4]),
+        ("Weights 89.0 -> 87.4 -> 86.1 kg", &[89.0, 87.4, 86.1]),
+        (
+            "Daily weights: 01/06 89.0, 02/06 87.4, 03/06 86.1",
+            &[89.0, 87.4, 86.1],
+        ),
+        ("Weights: 01.06 89.0, 02.06 87.4 kg", &[89.0, 87.4]),
+        // A pressure after the weight is not a second weight.
+        ("Wt 82.1, 120/80", &[82.1]),
+    ];
+    let mut failures = Vec::new();
+    for &(text, want) in rows {
+        let got = values(text, M::Weight);
+        if got != want {
+            failures.push(format!("{text:?}: got {got:?}, want {want:?}"));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
