@@ -826,3 +826,146 @@ fn series_time_words_and_bare_targets() {
         .iter()
         .any(|s| s.kind == StatementKind::TargetWeight));
 }
+
+/// A weight series gives every value once, in order, whether or not each value has a date
+/// before it: a decimal weight (`82.1`) is not a day and month when no reading follows it.
+/// 03 §3.7 lists "Daily weights: 01/06 89.0, 02/06 87.4, 03/06 86.1"; the undated forms
+/// with one unit at the end are common practice, no source.
+#[test]
+fn weight_series_with_and_without_dates() {
+    let rows: &[(&str, &[f64])] = &[
+        ("Wt 82.1 kg, 84.2 kg", &[82.1, 84.2]),
+        ("Weights 82.1, 81.6, 80.9 kg", &[82.1, 81.6, 80.9]),
+        ("Weights 82.1; 81.6; 80.9 kg", &[82.1, 81.6, 80.9]),
+        ("Wt 86.1, 85.4 kg", &[86.1, 85.4]),
+        ("Weights 89.0 -> 87.4 -> 86.1 kg", &[89.0, 87.4, 86.1]),
+        (
+            "Daily weights: 01/06 89.0, 02/06 87.4, 03/06 86.1",
+            &[89.0, 87.4, 86.1],
+        ),
+        ("Weights: 01.06 89.0, 02.06 87.4 kg", &[89.0, 87.4]),
+        // A pressure after the weight is not a second weight.
+        ("Wt 82.1, 120/80", &[82.1]),
+    ];
+    let mut failures = Vec::new();
+    for &(text, want) in rows {
+        let got = values(text, M::Weight);
+        if got != want {
+            failures.push(format!("{text:?}: got {got:?}, want {want:?}"));
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+/// A unit written once, at the end of a chain or series or on its first value, is the unit
+/// of every value in it: none is marked inferred and `unit-missing` stays quiet. 01 §1.2
+/// writes "Cr 132 -> 149 umol/L" and 03 §3.1 reads the arrow as "to" or "then"; a unit on
+/// the first value only, and the unit of a weight series written at its end, are common
+/// practice, no source. A unit never crosses to another test's value, and a chain with no
+/// unit anywhere still has every value flagged.
+#[test]
+fn a_unit_written_once_covers_its_chain() {
+    /// A note, the concept, and each value with the UCUM unit it must carry as written.
+    type Row = (&'static str, MeasureConcept, &'static [(f64, &'static str)]);
+    let rows: &[Row] = &[
+        (
+            "Cr 1.2 -> 1.6 -> 1.9 mg/dL",
+            M::Creatinine,
+            &[(1.2, "mg/dL"), (1.6, "mg/dL"), (1.9, "mg/dL")],
+        ),
+        (
+            "Cr 132 -> 149 umol/L",
+            M::Creatinine,
+            &[(132.0, "umol/L"), (149.0, "umol/L")],
+        ),
+        (
+            "Cr 132 umol/L -> 149",
+            M::Creatinine,
+            &[(132.0, "umol/L"), (149.0, "umol/L")],
+        ),
+        (
+            "creatinine 118 to 131 umol/L",
+            M::Creatinine,
+            &[(118.0, "umol/L"), (131.0, "umol/L")],
+        ),
+        (
+            "K 5.3 → 4.9 → 4.4 mmol/L",
+            M::Potassium,
+            &[(5.3, "mmol/L"), (4.9, "mmol/L"), (4.4, "mmol/L")],
+        ),
+        (
+            "NT-proBNP 12000 -> 3400 ng/L",
+            M::NtProbnp,
+            &[(12000.0, "ng/L"), (3400.0, "ng/L")],
+        ),
+        (
+            "Weights 89.0 -> 87.4 -> 86.1 kg",
+            M::Weight,
+            &[(89.0, "kg"), (87.4, "kg"), (86.1, "kg")],
+        ),
+        (
+            "Weights 82.1, 81.6, 80.9 kg",
+            M::Weight,
+            &[(82.1, "kg"), (81.6, "kg"), (80.9, "kg")],
+        ),
+        // The nearest unit after a value is its own: a scale swapped mid-series (03 §3.7).
+        (
+            "Weights 198, 196 lb, 89.6, 88.9 kg",
+            M::Weight,
+            &[
+                (198.0, "[lb_av]"),
+                (196.0, "[lb_av]"),
+                (89.6, "kg"),
+                (88.9, "kg"),
+            ],
+        ),
+    ];
+    let mut failures = Vec::new();
+    for &(text, concept, want) in rows {
+        let a = tidemark::analyze(text, &Default::default());
+        let got: Vec<(f64, &str, bool)> = a
+            .extraction
+            .measurements
+            .iter()
+            .filter(|m| m.concept == concept)
+            .map(|m| (m.value, m.unit.unwrap_or("-"), m.unit_inferred))
+            .collect();
+        let want: Vec<(f64, &str, bool)> = want.iter().map(|&(v, u)| (v, u, false)).collect();
+        let missing = a
+            .diagnostics
+            .iter()
+            .filter(|d| d.rule == "unit-missing")
+            .count();
+        if got != want || missing != 0 {
+            failures.push(format!("{text:?}: got {got:?}, {missing} unit-missing"));
+        }
+    }
+    // Not across to another test: the creatinine chain has no unit of its own.
+    let a = tidemark::analyze("Cr 1.2 -> 1.6, K 4.1 mmol/L", &Default::default());
+    let inferred: Vec<(MeasureConcept, bool)> = a
+        .extraction
+        .measurements
+        .iter()
+        .map(|m| (m.concept, m.unit_inferred))
+        .collect();
+    if inferred
+        != [
+            (M::Creatinine, true),
+            (M::Creatinine, true),
+            (M::Potassium, false),
+        ]
+    {
+        failures.push(format!("creatinine then potassium: {inferred:?}"));
+    }
+    // No unit anywhere: every value is still flagged.
+    let a = tidemark::analyze("Cr 132 -> 149 -> 161", &Default::default());
+    let missing = a
+        .diagnostics
+        .iter()
+        .filter(|d| d.rule == "unit-missing")
+        .count();
+    if missing != 3 {
+        failures.push(format!("unitless chain: {missing} unit-missing, want 3"));
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+}

@@ -151,6 +151,9 @@ pub fn reading_of(p: Pair<Rule>, base: usize) -> Option<Reading> {
 /// time word, then any asides (`(yesterday 83.1)`) and chains (`-> 131`).
 pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
     let mut out: Vec<Reading> = Vec::new();
+    // Which readings are steps of the value's own course (the main reading, chain links,
+    // comma items, earlier items and steps), as against asides.
+    let mut course: Vec<bool> = Vec::new();
     // `FB yesterday -1.3 L`: a time word between the label and the value places the value.
     let mut leading: Option<TimeRef> = None;
     // `Weight (kg): 84.2`: a unit named once in brackets after the label.
@@ -170,6 +173,7 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
                 if let Some(mut r) = reading_of(c, base) {
                     r.time_ref = leading;
                     out.push(r);
+                    course.push(true);
                 }
             }
             Rule::unit | Rule::ef_pct => {
@@ -214,6 +218,7 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
                             }
                         }
                         out.push(r);
+                        course.push(false);
                     }
                 }
             }
@@ -229,6 +234,7 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
                     });
                     if !unitless_comma || same_size {
                         out.push(r);
+                        course.push(true);
                     }
                 }
             }
@@ -238,6 +244,19 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
     if let Some(r) = out.first_mut() {
         if r.unit_text.is_none() {
             r.unit_text = head;
+        }
+    }
+    // `Cr 132 -> 149 umol/L`: a unit written once at the end of a course is the unit of
+    // the values before it, up to the previous unit written (01 §1.2 writes the chain so).
+    // An aside (`(141 umol/L)`) may give the value in another unit and lends it to none.
+    let mut later: Option<String> = None;
+    for (r, &step) in out.iter_mut().zip(&course).rev() {
+        if !step {
+            continue;
+        }
+        match &r.unit_text {
+            Some(u) => later = Some(u.clone()),
+            None => r.unit_text.clone_from(&later),
         }
     }
     // Asides and chains without a unit of their own share the main reading's unit.
@@ -855,13 +874,25 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
                 items.push(r);
             }
         }
-        let unit = items.iter().rev().find_map(|r| r.unit_text.clone());
+        // A value without a unit takes the next unit written after it (`82.1, 81.6, 80.9 kg`;
+        // `198, 196 lb, 89.6 kg` when a scale is swapped, 03 §3.7), else the last one before.
+        let mut later: Option<String> = None;
+        for r in items.iter_mut().rev() {
+            match &r.unit_text {
+                Some(u) => later = Some(u.clone()),
+                None => r.unit_text.clone_from(&later),
+            }
+        }
+        let mut earlier: Option<String> = None;
+        for r in items.iter_mut() {
+            match &r.unit_text {
+                Some(u) => earlier = Some(u.clone()),
+                None => r.unit_text.clone_from(&earlier),
+            }
+        }
         // A series of plausible body weights only (common practice, no source: 20-350 kg).
         if items.len() >= 2 && items.iter().all(|r| (20.0..=800.0).contains(&r.value)) {
             for (i, r) in items.iter_mut().enumerate() {
-                if r.unit_text.is_none() {
-                    r.unit_text = unit.clone();
-                }
                 let s = if i == 0 { start } else { r.start };
                 push(doc, out, MeasureConcept::Weight, r, s, false);
                 if r.time_ref.is_some() && r.date.is_none() {
