@@ -261,6 +261,18 @@ pub(crate) fn quote(s: &str) -> String {
     }
 }
 
+/// A neutral query, led by the note's clinical indicators when there are any.
+pub(crate) fn query_with_indicators(query: &str, indicators: &[String]) -> String {
+    if indicators.is_empty() {
+        query.to_string()
+    } else {
+        format!(
+            "Clinical indicators in this note: {}. {query}",
+            indicators.join("; ")
+        )
+    }
+}
+
 /// `line N` for a span, for messages that point at supporting items.
 pub(crate) fn at_line(span: &Span) -> String {
     format!("line {}", span.line)

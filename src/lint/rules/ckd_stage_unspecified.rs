@@ -75,14 +75,7 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
             format!("creatinine {} {u} ({})", num(v), at_line(&m.span))
         })
         .collect();
-    d.query = Some(if indicators.is_empty() {
-        STAGE_QUERY.to_string()
-    } else {
-        format!(
-            "Clinical indicators in this note: {}. {STAGE_QUERY}",
-            indicators.join("; ")
-        )
-    });
+    d.query = Some(crate::lint::query_with_indicators(STAGE_QUERY, &indicators));
     out.push(d);
 }
 

@@ -147,18 +147,11 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
             d
         }
     };
-    let mut query = TYPE_QUERY.to_string();
     let indicators: Vec<String> = patient_values(cx.ex, MeasureConcept::Lvef)
         .iter()
         .map(|m| format!("LVEF {}% ({})", num(m.value), at_line(&m.span)))
         .collect();
-    if !indicators.is_empty() {
-        query = format!(
-            "Clinical indicators in this note: {}. {query}",
-            indicators.join("; ")
-        );
-    }
-    d.query = Some(query);
+    d.query = Some(crate::lint::query_with_indicators(TYPE_QUERY, &indicators));
     out.push(d);
 }
 
