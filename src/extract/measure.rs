@@ -249,16 +249,13 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
     // `Cr 132 -> 149 umol/L`: a unit written once at the end of a course is the unit of
     // the values before it, up to the previous unit written (01 §1.2 writes the chain so).
     // An aside (`(141 umol/L)`) may give the value in another unit and lends it to none.
-    let mut later: Option<String> = None;
-    for (r, &step) in out.iter_mut().zip(&course).rev() {
-        if !step {
-            continue;
-        }
-        match &r.unit_text {
-            Some(u) => later = Some(u.clone()),
-            None => r.unit_text.clone_from(&later),
-        }
-    }
+    carry_units(
+        out.iter_mut()
+            .zip(&course)
+            .rev()
+            .filter(|(_, &step)| step)
+            .map(|(r, _)| r),
+    );
     // Asides and chains without a unit of their own share the main reading's unit.
     if let Some(unit) = out.first().and_then(|r| r.unit_text.clone()) {
         for r in out.iter_mut().skip(1) {
@@ -514,6 +511,18 @@ fn later_value_owns_time_cue(doc: &Doc, ctx: &mut crate::model::Context, end: us
     if all_beyond_a_number {
         ctx.temporality = Temporality::Current;
         ctx.cues.retain(|c| c.family != "historical");
+    }
+}
+
+/// Give each reading without a unit the last unit written before it in the order given
+/// (pass the readings reversed to carry a later unit back).
+fn carry_units<'r>(readings: impl Iterator<Item = &'r mut Reading>) {
+    let mut last: Option<String> = None;
+    for r in readings {
+        match &r.unit_text {
+            Some(u) => last = Some(u.clone()),
+            None => r.unit_text.clone_from(&last),
+        }
     }
 }
 
@@ -876,20 +885,8 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
         }
         // A value without a unit takes the next unit written after it (`82.1, 81.6, 80.9 kg`;
         // `198, 196 lb, 89.6 kg` when a scale is swapped, 03 §3.7), else the last one before.
-        let mut later: Option<String> = None;
-        for r in items.iter_mut().rev() {
-            match &r.unit_text {
-                Some(u) => later = Some(u.clone()),
-                None => r.unit_text.clone_from(&later),
-            }
-        }
-        let mut earlier: Option<String> = None;
-        for r in items.iter_mut() {
-            match &r.unit_text {
-                Some(u) => earlier = Some(u.clone()),
-                None => r.unit_text.clone_from(&earlier),
-            }
-        }
+        carry_units(items.iter_mut().rev());
+        carry_units(items.iter_mut());
         // A series of plausible body weights only (common practice, no source: 20-350 kg).
         if items.len() >= 2 && items.iter().all(|r| (20.0..=800.0).contains(&r.value)) {
             for (i, r) in items.iter_mut().enumerate() {
