@@ -246,7 +246,18 @@ pub fn find(text: &str, index: &LineIndex) -> Vec<Section> {
         // Only family history: past-history lists often run on over unmarked lines
         // ("PMH: IHD" then "CKD 3" then "AF"), relatives' rarely do.
         if *kind == SectionKind::FamilyHistory {
-            end = end.min(inline_section_end(text, index, *header_end));
+            end = end.min(inline_section_end(text, index, *header_end, |_| true));
+        }
+        // A past-history heading with its content on its line runs on over the unmarked
+        // lines of its list, but not over a line about this episode ("Echo this admission:
+        // LVEF 52%").
+        if *kind == SectionKind::PastHistory {
+            end = end.min(inline_section_end(
+                text,
+                index,
+                *header_end,
+                speaks_of_this_episode,
+            ));
         }
         out.push(Section {
             kind: *kind,
@@ -262,7 +273,14 @@ pub fn find(text: &str, index: &LineIndex) -> Vec<Section> {
 /// its content on the same line covers that line and the indented or bulleted lines under it,
 /// not the examination that follows without a heading of its own (common practice, no
 /// source). A heading alone on its line keeps its section to the next heading.
-fn inline_section_end(text: &str, index: &LineIndex, header_end: usize) -> usize {
+///
+/// `ends` says whether an unmarked line after the heading's own line ends the section.
+fn inline_section_end(
+    text: &str,
+    index: &LineIndex,
+    header_end: usize,
+    ends: impl Fn(&str) -> bool,
+) -> usize {
     let line_no = index.line_of(header_end.saturating_sub(1));
     let first = index.line_range(line_no);
     if text[header_end.min(first.end)..first.end].trim().is_empty() {
@@ -272,13 +290,38 @@ fn inline_section_end(text: &str, index: &LineIndex, header_end: usize) -> usize
     for n in line_no + 1..index.line_count() {
         let range = index.line_range(n);
         let line = &text[range.clone()];
-        let continued = line.starts_with([' ', '\t', '-', '•', '*']) && !line.trim().is_empty();
-        if !continued {
+        let marked = line.starts_with([' ', '\t', '-', '•', '*']) && !line.trim().is_empty();
+        if !marked && (line.trim().is_empty() || ends(line)) {
             break;
         }
         end = range.end;
     }
     end
+}
+
+/// Words that place a line in the present episode, not the past history: `this admission`,
+/// `on admission`, `today`, `currently` (common practice, no source).
+fn speaks_of_this_episode(line: &str) -> bool {
+    const NOW: [&str; 9] = [
+        "this admission",
+        "on admission",
+        "this episode",
+        "on arrival",
+        "today",
+        "currently",
+        "this morning",
+        "on examination",
+        "presenting",
+    ];
+    let lower = line.to_ascii_lowercase();
+    NOW.iter().any(|w| {
+        lower.match_indices(w).any(|(at, _)| {
+            let before = lower[..at].chars().next_back();
+            let after = lower[at + w.len()..].chars().next();
+            !before.is_some_and(|c| c.is_alphanumeric())
+                && !after.is_some_and(|c| c.is_alphanumeric())
+        })
+    })
 }
 
 /// Index of the section holding byte `offset`, if any.
@@ -318,5 +361,34 @@ mod tests {
     fn prose_with_colons_is_not_a_header() {
         assert!(kinds("Weight: 82 kg\nNote: seen with wife\n").is_empty());
         assert!(kinds("a: one\n").is_empty());
+    }
+
+    fn pmh_end(text: &str) -> &str {
+        let idx = LineIndex::new(text);
+        let s = find(text, &idx)
+            .into_iter()
+            .find(|s| s.kind == SectionKind::PastHistory)
+            .expect("a past-history section");
+        &text[s.span.start..s.span.end]
+    }
+
+    #[test]
+    fn inline_past_history_stops_at_this_episode() {
+        // Unmarked list lines run on (common practice, no source)...
+        assert_eq!(
+            pmh_end("PMH: IHD\nCKD 3a\nAF on apixaban\n\nBP 120/80\n"),
+            "PMH: IHD\nCKD 3a\nAF on apixaban"
+        );
+        // ...a line about the present admission does not.
+        assert_eq!(
+            pmh_end("Background: DCM 2022, LVEF 25%\nEcho this admission (12/07): LVEF 52%\n"),
+            "Background: DCM 2022, LVEF 25%"
+        );
+        assert_eq!(pmh_end("PMH: HTN\nToday: SOB, weight 84 kg\n"), "PMH: HTN");
+        // A heading alone on its line keeps its section to the next heading.
+        assert_eq!(
+            pmh_end("PAST MEDICAL HISTORY\nHTN\nSeen today in clinic\n"),
+            "PAST MEDICAL HISTORY\nHTN\nSeen today in clinic\n"
+        );
     }
 }
