@@ -20,6 +20,7 @@
 //! person, discharge advice and follow-up → hypothetical.
 
 use crate::extract::lexicon::{Direction, Family, Hit, Kind};
+use crate::extract::menu::{find_menus, menu_at, Menu};
 use crate::model::{Assertion, Context, Cue, Experiencer, Section, SectionKind, Temporality};
 use crate::span::LineIndex;
 use crate::text::segment::Sentences;
@@ -72,6 +73,8 @@ pub struct ContextEngine<'a> {
     /// Spans of all findings and statements, sorted, for list handling and nearest-target
     /// checks.
     targets: Vec<(usize, usize)>,
+    /// Template menu lines (`JVP: raised / not raised -> raised`).
+    menus: Vec<Menu>,
 }
 
 const CONNECTORS: &[&str] = &[
@@ -121,6 +124,49 @@ fn litotes(cue: &str) -> bool {
             .is_some_and(|w| w.eq_ignore_ascii_case("without") || w.eq_ignore_ascii_case("w/o"))
 }
 
+/// `no PE (pedal oedema)`: the gap between a cue and a target is an abbreviation with its
+/// expansion opening in brackets, so the cue reaches the expansion (common practice, no
+/// source).
+fn expands(gap: &str) -> bool {
+    let g = gap.trim();
+    let Some(abbr) = g.strip_suffix('(') else {
+        return false;
+    };
+    let abbr = abbr.trim_end();
+    (1..=6).contains(&abbr.len()) && abbr.bytes().all(|b| b.is_ascii_alphanumeric())
+}
+
+/// `SOB ? cause`, `oedema ? aetiology`: the question is about the cause, not the sign.
+fn queries_a_cause(after: &str) -> bool {
+    let w: String = after
+        .trim_start()
+        .chars()
+        .take_while(char::is_ascii_alphabetic)
+        .collect::<String>()
+        .to_ascii_lowercase();
+    matches!(
+        w.as_str(),
+        "cause"
+            | "causes"
+            | "aetiology"
+            | "etiology"
+            | "source"
+            | "precipitant"
+            | "trigger"
+            | "why"
+    )
+}
+
+/// A negation of now ("not today", "none at present"), which ends where the sign's clause
+/// began rather than three words back.
+fn now_negation(cue: &str) -> bool {
+    let l = cue.to_ascii_lowercase();
+    l.ends_with("today")
+        || l.ends_with("at present")
+        || l.ends_with("currently")
+        || l.ends_with(" now")
+}
+
 fn any_in(sorted: &[(usize, usize)], a: usize, b: usize) -> bool {
     let i = sorted.partition_point(|&(s, _)| s < a);
     sorted.get(i).is_some_and(|&(_, e)| e <= b)
@@ -165,6 +211,12 @@ impl<'a> ContextEngine<'a> {
                 .any(|&(s, e)| s <= c.start && c.end <= e && (s, e) != (c.start, c.end))
         };
         cues.retain(|c| !inside(c));
+        // The words of a menu's options ("not raised / not seen") are the form's, not the
+        // writer's: they are no cue for anything.
+        let menus = find_menus(text);
+        if !menus.is_empty() {
+            cues.retain(|c| menu_at(&menus, c.start).is_none_or(|m| !m.options.contains(&c.start)));
+        }
         cues.sort_by_key(|c| c.start);
         let mut forward: Vec<(Family, Vec<CueHit>)> = Vec::new();
         let mut backward: Vec<(Family, Vec<CueHit>)> = Vec::new();
@@ -214,7 +266,13 @@ impl<'a> ContextEngine<'a> {
             years: year_cues(text),
             brackets,
             targets,
+            menus,
         }
+    }
+
+    /// The template menu whose line holds `offset`.
+    pub fn menu_at(&self, offset: usize) -> Option<&Menu> {
+        menu_at(&self.menus, offset)
     }
 
     /// Words between `a` and `b`, not counting connectors and words of other findings;
@@ -329,7 +387,10 @@ impl<'a> ContextEngine<'a> {
             } else {
                 (end, c.start)
             };
-            if self.brackets_between(gap_a, gap_b) || self.terminated(gap_a, gap_b, family) {
+            if (self.brackets_between(gap_a, gap_b)
+                && !(before && expands(&self.text[gap_a..gap_b])))
+                || self.terminated(gap_a, gap_b, family)
+            {
                 continue;
             }
             let words = self.words(gap_a, gap_b, 6);
@@ -345,7 +406,15 @@ impl<'a> ContextEngine<'a> {
                     let reach = if before {
                         words <= 5 && !(quantified && self.text[gap_a..gap_b].contains(','))
                     } else {
-                        words <= 3 && self.nearest_target_before(c.start, end)
+                        // "confusion in the evenings per daughter, not today": a negation of
+                        // the present moment reaches back over the clause that qualifies the
+                        // sign, to the nearest one.
+                        let limit = if now_negation(&self.text[c.start..c.end]) {
+                            6
+                        } else {
+                            3
+                        };
+                        words <= limit && self.nearest_target_before(c.start, end)
                     };
                     if reach {
                         negated = Some(*c);
@@ -365,6 +434,14 @@ impl<'a> ContextEngine<'a> {
                             && !self.text[gap_a..gap_b].contains([',', ';'])
                             && !self.text[gap_a..gap_b].contains(" - "))
                             || (after && gap_b == gap_a)
+                            // "scattered creps ? basal": a spaced question mark between a
+                            // sign and its place queries the sign.
+                            || (after
+                                && self.text[gap_a..gap_b].trim().is_empty()
+                                && self.text[c.end..]
+                                    .trim_start_matches([' ', '\t'])
+                                    .starts_with(|ch: char| ch.is_ascii_alphabetic())
+                                && !queries_a_cause(&self.text[c.end..]))
                     } else if before && litotes(&self.text[c.start..c.end]) {
                         // "not without crackles": the double negative qualifies the words
                         // right after it, not the next clause ("not without difficulty, no

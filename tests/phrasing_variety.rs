@@ -339,6 +339,47 @@ const fn g(text: &'static str, grade: f64) -> Find {
 }
 
 const FINDINGS: &[Find] = &[
+    // Pick-lists pasted from an admission proforma: only the answer after the arrow
+    // documents anything (common practice, no source).
+    f(
+        "JVP: raised / not raised / not seen  ->  raised",
+        F::RaisedJvp,
+        Present,
+    ),
+    f(
+        "JVP: not raised / raised -> not raised",
+        F::RaisedJvp,
+        Absent,
+    ),
+    f("Confusion: Y / N  ->  N", F::AlteredMentation, Absent),
+    f("Confusion: Y/N -> Y", F::AlteredMentation, Present),
+    f(
+        "Oedema: none / ankle / shin / knee -> shin",
+        F::PeripheralEdema,
+        Present,
+    ),
+    f(
+        "Oedema: none / ankle / shin / knee -> none",
+        F::PeripheralEdema,
+        Absent,
+    ),
+    f(
+        "Chest: clear / crackles / wheeze -> crackles bibasally",
+        F::Crackles,
+        Present,
+    ),
+    f(
+        "Peripheries: warm / cool -> cool",
+        F::CoolPeripheries,
+        Present,
+    ),
+    f(
+        "Cap refill: <2s / >2s -> >2s",
+        F::ProlongedCapRefill,
+        Present,
+    ),
+    // A ticked box keeps the term (common practice, no source).
+    f("HPC: orthopnoea [x]  PND [ ]", F::Orthopnea, Present),
     // 03 §3.1: arrows for raised.
     f("JVP ↑", F::RaisedJvp, Present),
     f("JVP ↑↑, bibasal creps.", F::RaisedJvp, Present),
@@ -507,6 +548,39 @@ fn finding_phrasings() {
         }
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+/// What a form offers but the writer did not pick is not documented: an unticked box, the
+/// options of a pick-list, an answer that says the sign was not assessed (common practice,
+/// no source).
+#[test]
+fn unpicked_form_options_document_nothing() {
+    let cases: &[(&str, FindingConcept)] = &[
+        ("HPC: orthopnoea [x]  PND [ ]  palpitations [ ]", F::Pnd),
+        ("[ ] PND", F::Pnd),
+        (
+            "JVP: raised / not raised / not seen -> not seen",
+            F::RaisedJvp,
+        ),
+    ];
+    for (text, concept) in cases {
+        let e = ex(text);
+        let got: Vec<_> = e
+            .findings
+            .iter()
+            .filter(|f| f.concept == *concept)
+            .collect();
+        assert!(got.is_empty(), "{text:?}: {concept:?} read as {got:?}");
+    }
+    // The options' crackles are not read; the answer's "clear" is.
+    let e = ex("Chest: clear / crackles / wheeze -> clear");
+    let crackles: Vec<_> = e
+        .findings
+        .iter()
+        .filter(|f| f.concept == F::Crackles)
+        .map(|f| f.assertion)
+        .collect();
+    assert_eq!(crackles, vec![Absent], "{:?}", e.findings);
 }
 
 #[test]

@@ -192,7 +192,16 @@ fn pillow_count(doc: &Doc, start: usize) -> (Option<u32>, bool) {
                 None => (None, true),
             }
         }
-        None => (None, before.to_ascii_lowercase().contains("propped")),
+        None => {
+            // "had to add a pillow", "needs another pillow": more pillows than before.
+            static ADD: OnceLock<Regex> = OnceLock::new();
+            let add = re(
+                &ADD,
+                r"(?i)(?:add(?:s|ed|ing)?|need(?:s|ed|ing)?|requir(?:es|ed|ing)|us(?:es|ed|ing))\s+(?:a|an|another|one)\s*(?:extra\s+|more\s+)?$",
+            );
+            let lower = before.to_ascii_lowercase();
+            (None, lower.contains("propped") || add.is_match(before))
+        }
     }
 }
 
@@ -235,6 +244,50 @@ fn near<T: Copy>(
     &terms[a..b.max(a)]
 }
 
+/// What a menu's answer says of the label's sign: `Some(true)` present, `Some(false)`
+/// absent, `None` nothing certain (not assessed, or a word this reader does not know).
+/// Common practice of admission proformas, no source.
+fn menu_answer(answer: &str, concept: FindingConcept, d: &mut FindingDetail) -> Option<bool> {
+    if let Some(v) = super::menu::yes_no(answer) {
+        return Some(v);
+    }
+    let a = answer
+        .trim()
+        .trim_end_matches(['.', ';', ','])
+        .to_ascii_lowercase();
+    let a = a.as_str();
+    match concept {
+        FindingConcept::PeripheralEdema => {
+            static LEVEL: OnceLock<Regex> = OnceLock::new();
+            let r = re(
+                &LEVEL,
+                r"^(?:to\s+)?(?:the\s+)?(sacral|sacrum|ankles?|pedal|mid[- ]?shins?|shins?|mid[- ]?calf|calf|calves|knees?|thighs?|groin|abdomen)$",
+            );
+            let c = r.captures(a)?;
+            d.level = Some(normalise_level(&c[1]));
+            Some(true)
+        }
+        FindingConcept::CoolPeripheries => match a {
+            "cool" | "cold" | "clammy" | "mottled" | "cool and clammy" | "cold and clammy" => {
+                Some(true)
+            }
+            "warm" | "warm and well perfused" | "wwp" => Some(false),
+            _ => None,
+        },
+        FindingConcept::Crackles => match a {
+            "clear" | "nad" => Some(false),
+            _ => None,
+        },
+        FindingConcept::ProlongedCapRefill => {
+            static CRT: OnceLock<Regex> = OnceLock::new();
+            let r = re(&CRT, r"^([<>])\s*[2-5]\s*(?:s|sec|secs|seconds)?$");
+            let c = r.captures(a)?;
+            Some(&c[1] == ">")
+        }
+        _ => None,
+    }
+}
+
 /// Findings from finding terms.
 pub fn findings(doc: &Doc, out: &mut Output) {
     let terms: Vec<_> = doc
@@ -264,7 +317,34 @@ pub fn findings(doc: &Doc, out: &mut Output) {
             continue;
         }
         let mut detail = FindingDetail::default();
+        // A template menu: the options are not findings, and the label's sign is what the
+        // answer says (or what a finding term written in the answer says).
+        let menu = doc.engine.menu_at(start).filter(|m| start < m.answer.start);
+        let mut menu_present = None;
+        if let Some(m) = &menu {
+            if start >= m.options.start {
+                continue;
+            }
+            let answered_by_term = terms[terms.partition_point(|t| t.0 < m.answer.start)..]
+                .first()
+                .is_some_and(|t| t.0 < m.answer.end);
+            if answered_by_term {
+                continue;
+            }
+            let answer = doc.text[m.answer.clone()].trim();
+            let term_words = doc.text[start..end].rsplit([':', '=']).next().unwrap_or("");
+            if term_words.trim().eq_ignore_ascii_case(answer) {
+                // The answer is the option the term itself names (`Chest: clear / crackles
+                // -> clear`): the term reads as written.
+            } else {
+                match menu_answer(answer, concept, &mut detail) {
+                    Some(present) => menu_present = Some(present),
+                    None => continue,
+                }
+            }
+        }
         let present = match polarity {
+            _ if menu_present.is_some() => menu_present == Some(true),
             // Resolved by the scan; a lead without its shorthand is no finding.
             Polarity::Unassessable | Polarity::HeartSounds => continue,
             Polarity::Present => true,
@@ -294,6 +374,22 @@ pub fn findings(doc: &Doc, out: &mut Output) {
                         && (s.abs_diff(end) < 24 || e.abs_diff(start) < 24)
                 });
                 if near_term {
+                    continue;
+                }
+                // "two pillows, which is his habit", "always slept on three pillows (neck)":
+                // pillows for another reason or from long habit are no orthopnoea (common
+                // practice, no source).
+                static HABIT: OnceLock<Regex> = OnceLock::new();
+                let habit = re(
+                    &HABIT,
+                    r"(?i)(?-u:\b)(?:habit|habitual|habitually|always|usual|usually|for comfort|for years|long[- ]?standing|(?:his|her|their) back|(?:his|her|their) neck|reflux|heartburn|out of preference|preference)(?-u:\b)",
+                );
+                let (a, b) = window(doc, start, end, 40, 50);
+                let after = &doc.text[end..b];
+                let after = &after[..after.find(['.', ';']).unwrap_or(after.len())];
+                let before = &doc.text[a..start];
+                let before = &before[before.rfind(['.', ';']).map_or(0, |i| i + 1)..];
+                if habit.is_match(after) || habit.is_match(before) {
                     continue;
                 }
                 detail.pillows = count;
@@ -329,13 +425,25 @@ pub fn findings(doc: &Doc, out: &mut Output) {
             let line_end = doc.line_at(end).end;
             r.is_match(&doc.text[end..line_end.max(end)])
         };
-        let present = present && !slot_negative;
+        let present = present && (menu_present.is_some() || !slot_negative);
         // An empty template slot (`Oedema: [ ]`, `JVP: ___`) documents nothing.
         {
             static EMPTY: OnceLock<Regex> = OnceLock::new();
             let r = re(&EMPTY, r"^\s*[:=]\s*(?:\[\s*\]|_{2,}|\.{3}|\?\s*$)");
             let line_end = doc.line_at(end).end;
             if r.is_match(&doc.text[end..line_end.max(end)]) {
+                continue;
+            }
+            // An unticked box, after the term (`PND [ ]`) or opening its line (`[ ] PND`),
+            // documents nothing; a ticked one (`[x]`) leaves the term as written.
+            static AFTER: OnceLock<Regex> = OnceLock::new();
+            static BEFORE: OnceLock<Regex> = OnceLock::new();
+            let after = re(&AFTER, r"^[ \t]*(?:\[[ \t]*\]|\([ \t]*\)|☐)");
+            let before = re(&BEFORE, r"^[ \t]*(?:[-*•][ \t]*)?(?:\[[ \t]*\]|☐)[ \t]*$");
+            let line_start = doc.line_at(start).start;
+            if after.is_match(&doc.text[end..line_end.max(end)])
+                || before.is_match(&doc.text[line_start..start])
+            {
                 continue;
             }
         }

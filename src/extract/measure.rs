@@ -1157,6 +1157,26 @@ fn jvp_words(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize
         )
         .expect("valid regex")
     });
+    // A template menu (`JVP: raised / not raised / not seen -> raised`): the answer
+    // decides, not the first option.
+    if let Some(m) = doc
+        .engine
+        .menu_at(end)
+        .filter(|m| end <= m.options.start && m.options.start - end <= 4)
+    {
+        if let Some(present) = super::menu::yes_no(&doc.text[m.answer.clone()]) {
+            push_finding(
+                doc,
+                out,
+                FindingConcept::RaisedJvp,
+                present,
+                start,
+                end,
+                FindingDetail::default(),
+            );
+        }
+        return;
+    }
     let line = doc.line_at(end);
     let Some(c) = re.captures(&doc.text[end..line.end]) else {
         return;
@@ -1445,10 +1465,16 @@ fn push_finding(
 /// reference, 03 §3.5, lists "CRT 2 secs" among the warm forms and "CRT 4 s",
 /// "cap refill > 3 s" among the cold ones).
 fn capillary_refill(doc: &Doc, out: &mut Output, start: usize, end: usize) {
-    let Some(p) = parse_at(doc, Rule::crt_value, end) else {
+    // A template menu (`Cap refill: <2s / >2s -> >2s`): read the answer, not the options.
+    let at = doc
+        .engine
+        .menu_at(end)
+        .filter(|m| end <= m.options.start && m.options.start - end <= 4)
+        .map_or(end, |m| m.answer.start);
+    let Some(p) = parse_at(doc, Rule::crt_value, at) else {
         return;
     };
-    let pend = end + p.as_span().end();
+    let pend = at + p.as_span().end();
     let overlaps_term = doc.hits_near(start, pend).any(|h| {
         matches!(h.kind, Kind::Finding(FindingConcept::ProlongedCapRefill, _))
             && h.start < pend

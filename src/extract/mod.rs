@@ -16,6 +16,7 @@ pub mod findings;
 pub mod lexicon;
 pub mod measure;
 pub mod meds;
+pub mod menu;
 mod numbers;
 mod positional;
 
