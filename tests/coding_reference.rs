@@ -144,3 +144,80 @@ fn a_stage_written_with_ckd_is_read() {
         );
     }
 }
+
+#[test]
+fn acute_on_chronic_in_index_and_background_wording() {
+    // ICD-10-CM Index/Tabular FY2026: "Acute on chronic diastolic (congestive) heart
+    // failure" is the title of I50.33, and I50.23 the systolic one; the parenthesised word
+    // between type and noun is the index's own wording.
+    for (text, want) in [
+        (
+            "PRINCIPAL DIAGNOSIS: Acute on chronic diastolic (congestive) heart failure\n",
+            "I50.33",
+        ),
+        (
+            "Dx: acute on chronic systolic (congestive) heart failure.\n",
+            "I50.23",
+        ),
+        // "acute decompensation of chronic ...": acute on chronic (ICD-10-CM index,
+        // acute and chronic written together).
+        (
+            "Diagnosis: Acute decompensation of chronic heart failure with reduced ejection fraction.\n",
+            "I50.23",
+        ),
+        (
+            "Imp: acute exacerbation of chronic HFpEF.\n",
+            "I50.33",
+        ),
+        // Decompensated on a background of / in known heart failure: acute on chronic
+        // (AHA Coding Clinic 3Q 2008; domain reference 07 lists "known HF", "background
+        // HFrEF" as chronic).
+        (
+            "I) Acute decompensated CCF on background of HFrEF (EF 35%).\n",
+            "I50.23",
+        ),
+        ("Imp: decompensated HFpEF on a background of HTN.\nKnown HFpEF.\n", "I50.33"),
+        ("Known HFrEF. Admitted with decompensated heart failure.\n", "I50.23"),
+        // "Chronic" in a sentence of its own continues the heart failure named before it
+        // (common practice, no source).
+        (
+            "HFpEF (EF 60% 2025), AF. Chronic, stable until this month.\nImpression: Decompensated HFpEF.\n",
+            "I50.33",
+        ),
+    ] {
+        let codes = suggested(text);
+        assert!(codes.iter().any(|c| c == want), "{text}: {codes:?}");
+    }
+    // Without any chronic evidence decompensated stays acute (AHA Coding Clinic 3Q 2008).
+    assert_eq!(
+        suggested("Imp: decompensated HFrEF, first presentation.\n"),
+        ["I50.21"]
+    );
+}
+
+#[test]
+fn uncertain_heart_failure_and_department_names_ask_for_no_code() {
+    // ICD-10-CM Official Guidelines FY2026, Section IV.H: uncertain diagnoses are not coded
+    // outside inpatient discharge, so type and acuity are not asked for yet.
+    for text in [
+        "Cardiology consult.\nImp: Possible new heart failure - not confirmed. TTE this week.\n",
+        "Dear Dr Example,\nQuery HFpEF given hypertension and obesity. No echo yet.\n",
+        "HF DAY UNIT - IV DIURETIC CLINIC\nSeen for IV furosemide. Weight 80 kg.\n",
+    ] {
+        let d = diagnostics(text);
+        for rule in [
+            "hf-acuity-unspecified",
+            "hf-type-unspecified",
+            "lvef-missing",
+            "nyha-missing",
+        ] {
+            assert!(
+                !d.iter().any(|(r, _)| r == rule),
+                "{rule} fired on {text}: {d:?}"
+            );
+        }
+    }
+    // An affirmed heart failure still asks (ICD-10-CM Tabular I50.9 vs I50.2x-I50.4x).
+    let d = diagnostics("Ward round.\nImp: heart failure. Weight 80 kg.\n");
+    assert!(d.iter().any(|(r, _)| r == "hf-type-unspecified"), "{d:?}");
+}

@@ -523,6 +523,12 @@ const ACUITY_GAP_WORDS: &[&str] = &[
     "combined",
     "exacerbation",
     "decompensation",
+    // "acute decompensation of chronic heart failure": the other acuity word may stand
+    // between, and combine_acuity joins the two.
+    "acute",
+    "chronic",
+    "a",
+    "background",
     "hf",
     "ccf",
     "chf",
@@ -541,9 +547,42 @@ fn gap_ok(doc: &Doc, a: usize, b: usize) -> bool {
     if gap.len() > 40 || gap.contains(['.', ';', '\n']) {
         return false;
     }
-    gap.split(|c: char| c.is_whitespace() || c == ',')
+    // "acute on chronic diastolic (congestive) heart failure": ICD-10-CM index wording puts a
+    // parenthesised word between the type and the noun.
+    gap.split(|c: char| c.is_whitespace() || matches!(c, ',' | '(' | ')'))
         .filter(|w| !w.is_empty())
         .all(|w| ACUITY_GAP_WORDS.contains(&w.to_ascii_lowercase().as_str()))
+}
+
+/// "HFpEF (EF 60%), AF. Chronic, stable until this month.": a sentence that opens with
+/// "chronic" and names nothing of its own ("Chronic," "Chronic and stable", "Chronic -")
+/// continues the heart failure named in the sentence before it (within 200 bytes).
+/// Common practice, no source.
+fn elided_chronic(doc: &Doc, hf: &[(usize, usize)], start: usize, end: usize) -> bool {
+    let before = &doc.text[doc.text.floor_char_boundary(start.saturating_sub(200))..start];
+    let trimmed = before.trim_end_matches([' ', '\t']);
+    // Opens a sentence: after a full stop, a semicolon or the start of a line.
+    if !(trimmed.is_empty() || trimmed.ends_with(['.', ';', '\n'])) {
+        return false;
+    }
+    let after = doc.text[end..].trim_start_matches([' ', '\t']);
+    let lower = after
+        .get(..after.len().min(12))
+        .unwrap_or("")
+        .to_ascii_lowercase();
+    if !(after.starts_with([',', '-', '.', ';', '\n'])
+        || lower.starts_with("and ")
+        || lower.starts_with("stable"))
+    {
+        return false;
+    }
+    // The sentence before: back to the previous full stop or line start before it.
+    let prev = trimmed.trim_end_matches(['.', ';', '\n']);
+    let from = prev.rfind(['.', ';', '\n']).map_or(0, |i| i + 1);
+    let lo = start - before.len() + from;
+    hf_near(hf, lo, start)
+        .iter()
+        .any(|&(s, e)| s >= lo && e <= start)
 }
 
 fn hf_near(hf: &[(usize, usize)], start: usize, end: usize) -> &[(usize, usize)] {
@@ -599,6 +638,24 @@ pub fn statements(doc: &Doc, out: &mut Output) {
             episode: doc.episode_of(start),
         });
     };
+    // "Known HFrEF", "on background of HFrEF", "established CCF": words that say the heart
+    // failure is already known. They are no acuity of their own, but the heart-failure
+    // statement's text takes them in, so that a "decompensated" elsewhere reads as acute on
+    // chronic (AHA Coding Clinic 3Q 2008).
+    let known: Vec<(usize, usize)> = terms
+        .iter()
+        .filter(|t| t.2 == StatementKey::Acuity && t.3 == "known")
+        .map(|t| (t.0, t.1))
+        .collect();
+    let known_start = |start: usize| -> usize {
+        let i = known.partition_point(|k| k.1 <= start);
+        known[..i]
+            .iter()
+            .rev()
+            .take(2)
+            .find(|k| start - k.1 <= 24 && gap_ok(doc, k.1, start))
+            .map_or(start, |k| k.0)
+    };
     for &(start, end, key, value) in &terms {
         match key {
             StatementKey::HeartFailure => match value {
@@ -607,7 +664,13 @@ pub fn statements(doc: &Doc, out: &mut Output) {
                     push(out, StatementKind::HeartFailure, "named", start, end);
                     push(out, StatementKind::Acuity, value, start, end);
                 }
-                _ => push(out, StatementKind::HeartFailure, "named", start, end),
+                _ => push(
+                    out,
+                    StatementKind::HeartFailure,
+                    "named",
+                    known_start(start),
+                    end,
+                ),
             },
             StatementKey::Cardiomyopathy => {}
             StatementKey::HfType => {
@@ -617,8 +680,9 @@ pub fn statements(doc: &Doc, out: &mut Output) {
                     || term.contains("chf")
                     || term.contains("ccf");
                 if names_hf {
-                    push(out, StatementKind::HeartFailure, "named", start, end);
-                    push(out, StatementKind::HfType, value, start, end);
+                    let from = known_start(start);
+                    push(out, StatementKind::HeartFailure, "named", from, end);
+                    push(out, StatementKind::HfType, value, from, end);
                 } else {
                     // "reduced EF", "preserved ejection fraction": a type only when it
                     // qualifies heart failure on the same line ("HF with reduced EF",
@@ -632,11 +696,12 @@ pub fn statements(doc: &Doc, out: &mut Output) {
                     }
                 }
             }
+            StatementKey::Acuity if value == "known" => {}
             StatementKey::Acuity => {
                 let attached = hf_near(&hf_terms, start, end).iter().any(|&(s, e)| {
                     (s >= end && gap_ok(doc, end, s)) || (e <= start && gap_ok(doc, e, start))
                 });
-                if attached {
+                if attached || (value == "chronic" && elided_chronic(doc, &hf_terms, start, end)) {
                     push(out, StatementKind::Acuity, value, start, end);
                 }
             }

@@ -184,6 +184,38 @@ fn cue_places(lower: &str, title: std::ops::Range<usize>, header_end: usize) -> 
     best
 }
 
+/// Whether a letter is a referral asking for an opinion rather than the specialist's own
+/// assessment: "Referral to ..." or "re: referral" in the header block, or a request to see
+/// the patient ("I would be grateful if you could see", "please see and advise"). The wording
+/// is common practice of UK, US and Australian referral letters (no source).
+pub fn is_referral(text: &str) -> bool {
+    const HEADER: [&str; 4] = [
+        "referral",
+        "referral letter",
+        "re: referral",
+        "request for review",
+    ];
+    const ASKS: [&str; 9] = [
+        "grateful if you could see",
+        "grateful if you would see",
+        "grateful if you could review",
+        "grateful if you could assess",
+        "grateful for your opinion",
+        "please see and advise",
+        "appreciate your assessment",
+        "appreciate your opinion",
+        "thank you for seeing",
+    ];
+    let lower = text.to_lowercase();
+    let header_end = lower
+        .match_indices('\n')
+        .nth(HEADER_LINES - 1)
+        .map(|(i, _)| i)
+        .unwrap_or(lower.len());
+    let header = &lower[..header_end];
+    HEADER.iter().any(|p| has_phrase(header, p)) || ASKS.iter().any(|p| has_phrase(&lower, p))
+}
+
 /// Decide the kind of a note from its header block, its wording and its sections.
 pub fn detect(text: &str, ex: &Extraction) -> DocKind {
     let lower = text.to_lowercase();

@@ -162,8 +162,9 @@ fn volume(v: &str) -> Option<&'static str> {
     }
 }
 
-const KNOWN_WORDS: [&str; 7] = [
+const KNOWN_WORDS: [&str; 8] = [
     "known",
+    "background",
     "chronic",
     "worsening",
     "established",
@@ -202,6 +203,14 @@ fn chronic_documented(ex: &Extraction, decompensated: &Statement) -> Option<Stri
     None
 }
 
+/// A current acute or decompensated statement about the patient, if any.
+fn current_acute<'a>(ex: &'a Extraction, tl: &Timeline) -> Option<&'a Statement> {
+    latest(ex, tl, StatementKind::Acuity, |v| {
+        acuity(v).filter(|a| matches!(*a, "acute" | "decompensated"))
+    })
+    .map(|(s, _)| s)
+}
+
 /// Build the classifications.
 pub fn build(ex: &Extraction, tl: &Timeline) -> Classifications {
     let mut c = Classifications::default();
@@ -236,6 +245,21 @@ pub fn build(ex: &Extraction, tl: &Timeline) -> Classifications {
                         "decompensated with no chronic heart failure documented: acute".to_string(),
                     ),
                 ),
+            }
+        } else if v == "chronic" {
+            // "Acute decompensated HF. Known HFrEF.": an acute word and a chronic one written
+            // about the patient's heart failure in the same note code as acute on chronic
+            // (ICD-10-CM index, "acute and chronic" written together; AHA Coding Clinic 3Q
+            // 2008 for decompensated).
+            match current_acute(ex, tl) {
+                Some(a) => (
+                    "acute_on_chronic",
+                    Some(format!(
+                        "chronic, with \"{}\" documented for this episode: acute on chronic",
+                        a.text
+                    )),
+                ),
+                None => (v, None),
             }
         } else {
             (v, None)

@@ -50,7 +50,7 @@ heart failure be further specified: acute, chronic, acute on chronic, other (ple
 or clinically undetermined?";
 
 fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
-    let Some(hf) = crate::lint::hf_mention(cx.ex) else {
+    let Some(hf) = super::hf_for_coding(cx) else {
         return;
     };
     if !statements(cx.ex, StatementKind::Acuity).is_empty()

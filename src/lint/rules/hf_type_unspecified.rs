@@ -85,7 +85,7 @@ failure be further specified? For example: heart failure with reduced ejection f
 undetermined.";
 
 fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
-    let Some(hf) = crate::lint::hf_mention(cx.ex) else {
+    let Some(hf) = super::hf_for_coding(cx) else {
         return;
     };
     let stated_in_picture = cx
@@ -95,7 +95,12 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
         .hf_type
         .as_ref()
         .is_some_and(|s| s.basis == "stated");
-    if !statements(cx.ex, StatementKind::HfType).is_empty() || stated_in_picture {
+    // A type written with doubt ("?HFpEF" in a discharge summary) is still a type named: the
+    // message must not call it untyped.
+    if !statements(cx.ex, StatementKind::HfType).is_empty()
+        || stated_in_picture
+        || hf.kind == StatementKind::HfType
+    {
         return;
     }
     let named = quote(&hf.text);

@@ -23,7 +23,10 @@ type or a qualitative LV function (\"severely impaired LV function\") is stated 
 is, it fires as info: the type is documented, but the EF value and its date are what the type
 rests on. Any LVEF value, even a range or a bound (`EF <20%`), silences it. It applies to
 every kind of note that names heart failure, nursing and telephone entries included: whoever
-reads the note next needs the EF, and its absence is worth a query.
+reads the note next needs the EF, and its absence is worth a query. It is also silent when
+the note says an echo is planned or awaited (\"echo in AM\", \"TTE this week\", \"for
+echo\", an echo in the plan) or why there is none (\"no echo yet\", \"no prior echo
+available\"): the item is assessed, or planned, or a reason is given.
 
 ## Why
 LV systolic function drives both treatment and coding: the type of heart failure (I50.2-
@@ -47,11 +50,51 @@ Manual for National Hospital Inpatient Quality Measures, HF-2 data element \"LVF
 guideline.
 ";
 
+/// An echo (or other LV imaging) written with a plan or a time to come, or its absence
+/// stated: `echo in AM`, `TTE this week`, `for echo`, `echo requested`, `no echo yet`, `no
+/// prior echo available`. The quality measure counts LV function assessed, planned, or a
+/// reason for not assessing it (Joint Commission HF-2 data element; domain reference 09).
+pub(crate) fn echo_accounted_for(cx: &Ctx<'_>) -> bool {
+    use regex::Regex;
+    use std::sync::OnceLock;
+    const IMG: &str =
+        r"(?:echo(?:cardiogram|cardiography|es)?|tte|toe|tee|cardiac mri|cmr|mri heart)";
+    static RE: OnceLock<Regex> = OnceLock::new();
+    let re = RE.get_or_init(|| {
+        Regex::new(&format!(
+            r"(?ix)
+            \b{IMG}\b [^.;\n]{{0,40}}? \b(?:planned|requested|booked|awaited|pending|arranged|ordered
+                |outstanding|to\ follow|to\ be\ done|tomorrow|tmrw|in\ (?:the\ )?(?:am|morning)
+                |this\ (?:week|admission)|next\ week|on\ monday|in\ \d+\ (?:days?|weeks?|months?)
+                |today|when\ (?:able|stable))\b
+            | \b(?:for|request(?:ed)?|order(?:ed)?|arrange(?:d)?|book(?:ed)?|await(?:ing)?|needs?
+                |will\ need|plan(?:ned)?|refer(?:red)?\ for|repeat)\b [^.;\n]{{0,24}}? \b{IMG}\b
+            | \bno\ (?:prior\ |previous\ |recent\ |old\ |formal\ )?{IMG}\b
+            | \bnot\ had\ an?\ {IMG}\b
+            | \b{IMG}\ not\ (?:yet\ )?(?:done|performed|available)\b"
+        ))
+        .expect("echo plan pattern")
+    });
+    if super::documented(cx.text, re) {
+        return true;
+    }
+    // A bare "echo" in the plan section is an echo ordered.
+    static BARE: OnceLock<Regex> = OnceLock::new();
+    let bare =
+        BARE.get_or_init(|| Regex::new(&format!(r"(?i)\b{IMG}\b")).expect("echo word pattern"));
+    cx.ex
+        .sections
+        .iter()
+        .filter(|s| s.kind == crate::model::SectionKind::Plan)
+        .filter_map(|s| cx.text.get(s.span.range()))
+        .any(|t| bare.is_match(t))
+}
+
 fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
-    let Some(hf) = crate::lint::hf_mention(cx.ex) else {
+    let Some(hf) = super::hf_for_coding(cx) else {
         return;
     };
-    if !patient_values(cx.ex, MeasureConcept::Lvef).is_empty() {
+    if !patient_values(cx.ex, MeasureConcept::Lvef).is_empty() || echo_accounted_for(cx) {
         return;
     }
     let typed = statements(cx.ex, StatementKind::HfType).first().copied();

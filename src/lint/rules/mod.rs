@@ -85,6 +85,33 @@ pub(crate) fn hf_relevant(ex: &Extraction) -> bool {
         })
 }
 
+/// The first mention of heart failure that the coding and documentation rules act on: an
+/// affirmed one, or an uncertain one ("suspected heart failure", "?HFpEF") in a discharge
+/// summary only. Uncertain diagnoses are coded as if established only for inpatients at
+/// discharge (ICD-10-CM Official Guidelines FY2026, Section II.H); in outpatient and
+/// consultation notes they are not coded (Section IV.H), so a possible or queried heart
+/// failure there asks for no type, acuity, LVEF or NYHA class yet.
+pub(crate) fn hf_for_coding<'a>(cx: &super::Ctx<'a>) -> Option<&'a crate::model::Statement> {
+    use crate::model::Assertion;
+    let m = super::hf_mention(cx.ex)?;
+    if m.assertion == Assertion::Present || cx.kind == super::DocKind::DischargeSummary {
+        return Some(m);
+    }
+    super::statements(cx.ex, crate::model::StatementKind::HeartFailure)
+        .into_iter()
+        .chain(super::statements(
+            cx.ex,
+            crate::model::StatementKind::HfType,
+        ))
+        .min_by_key(|s| s.span.start)
+}
+
+/// Whether the note says, in one sentence, that an item was not done for a reason or is
+/// planned: `re` is matched case-insensitively against each line of `text`.
+pub(crate) fn documented(text: &str, re: &regex::Regex) -> bool {
+    text.lines().any(|l| re.is_match(l))
+}
+
 /// Days since 1970-01-01 of an ISO date `YYYY-MM-DD` (proleptic Gregorian), if valid.
 pub(crate) fn iso_day(date: &str) -> Option<i64> {
     let mut parts = date.get(..10)?.split('-');

@@ -18,7 +18,9 @@ const DOC: &str = "\
 ## What
 Fires on clinic letters about heart failure that state no NYHA functional class (I-IV, Roman
 or Arabic numerals, a range such as II-III, or a baseline class). Only clinic letters are
-checked: ward notes and discharge summaries often leave the class to the clinic.
+checked: ward notes and discharge summaries often leave the class to the clinic. A referral
+letter (\"Referral to the heart failure clinic\", \"I would be grateful if you could see\")
+asks for the assessment that would give the class, so it is not checked either.
 
 ## Why
 The NYHA class is the clinic's summary of symptoms on exertion. Treatment decisions and
@@ -41,9 +43,12 @@ edition, 1994.
 ";
 
 fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
-    let Some(hf) = crate::lint::hf_mention(cx.ex) else {
+    let Some(hf) = super::hf_for_coding(cx) else {
         return;
     };
+    if crate::lint::kind::is_referral(cx.text) {
+        return;
+    }
     if !statements(cx.ex, StatementKind::Nyha).is_empty()
         || cx.pic.classifications.nyha_class.is_some()
     {
