@@ -105,6 +105,68 @@ pub fn accepts(concept: MeasureConcept, code: &str) -> bool {
     }
 }
 
+/// The kind of quantity a UCUM code measures, for telling a unit of another dimension
+/// from a unit of the right one written oddly (UCUM groups its units by property in the
+/// same way: temperature, mass, length, volume, substance or mass concentration, ...).
+pub fn dimension(code: &str) -> &'static str {
+    match code {
+        "Cel" | "[degF]" | "deg" => "temperature",
+        "mm[Hg]" | "cm[H2O]" => "pressure",
+        "/min" => "frequency",
+        "%" => "fraction",
+        "kg" | "[lb_av]" | "[stone_av]" => "mass",
+        "cm" | "m" | "[in_i]" | "[ft_i]" => "length",
+        "mL" | "L" => "volume",
+        "mL/d" | "L/d" | "mL/h" | "L/h" | "mL/kg/h" => "flow",
+        "pg/mL" | "ng/L" | "pmol/L" | "umol/L" | "mg/dL" | "mmol/L" | "meq/L" | "g/L" | "g/dL" => {
+            "concentration"
+        }
+        "s" => "time",
+        _ => "other",
+    }
+}
+
+/// Whether a value written in `code` cannot be of `concept` at all: its unit measures
+/// another kind of quantity (`T 34 ng/L` is a troponin, not a temperature). A JVP in cm
+/// and a balance in mL/d share their concept's dimension by the concept's own units.
+pub fn other_dimension(concept: MeasureConcept, code: &str) -> bool {
+    let d = dimension(code);
+    const ALL: &[&str] = &[
+        "Cel",
+        "[degF]",
+        "deg",
+        "mm[Hg]",
+        "cm[H2O]",
+        "/min",
+        "%",
+        "kg",
+        "[lb_av]",
+        "[stone_av]",
+        "cm",
+        "m",
+        "[in_i]",
+        "[ft_i]",
+        "mL",
+        "L",
+        "mL/d",
+        "L/d",
+        "mL/h",
+        "L/h",
+        "mL/kg/h",
+        "pg/mL",
+        "ng/L",
+        "pmol/L",
+        "umol/L",
+        "mg/dL",
+        "mmol/L",
+        "meq/L",
+        "g/L",
+        "g/dL",
+        "s",
+    ];
+    d != "other" && !ALL.iter().any(|c| accepts(concept, c) && dimension(c) == d)
+}
+
 /// Convert a value in `unit` to the concept's canonical unit. Rates (urine output per hour)
 /// stay rates: they are returned in `mL/h` or `mL/kg/h`, never silently turned into volumes.
 /// `bun` says the value is a urea nitrogen (BUN) figure rather than urea itself.

@@ -405,3 +405,34 @@ proptest::proptest! {
         proptest::prop_assert!(t.contains("before handing over"));
     }
 }
+
+#[test]
+fn an_undated_earlier_weight_comes_before_todays() {
+    // Common practice, no source: "last clinic weight" names a weight from before this
+    // note, so the sheet's series runs from it to today's dated weight (a gain, here).
+    let text = "Bed 3   MRN 0000303   09/11/2026 10:00\n\
+Weight 96.3 kg (last clinic weight 89 kg in Sept).\n";
+    let n = common::NoteBuilder::new("x.txt", text)
+        .m(
+            "Weight 96.3 kg",
+            0,
+            tidemark::model::MeasureConcept::Weight,
+            96.3,
+            None,
+            Some("2026-11-09"),
+        )
+        .m(
+            "weight 89 kg",
+            0,
+            tidemark::model::MeasureConcept::Weight,
+            89.0,
+            Some(tidemark::model::TimeRef::Previous),
+            None,
+        )
+        .build();
+    let s = build_sheet(&[n], &Matcher::default());
+    let w = s.patients[0].weight.as_ref().expect("weight series");
+    let values: Vec<f64> = w.points.iter().map(|p| p.value).collect();
+    assert_eq!(values, [89.0, 96.3]);
+    assert_eq!(w.latest_kg, 96.3);
+}

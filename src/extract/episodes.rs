@@ -108,9 +108,16 @@ pub fn note_date(
             from += 1;
         }
         let before = text[from..d.start].to_ascii_lowercase();
-        let rank = if before.contains("discharge") {
+        // The word names this date only with no number between them (`Clinic date:
+        // 19/11/2026`, not `clinic scales), was 10 st 12 lb on 22/10`).
+        let names = |w: &str| {
+            before
+                .rfind(w)
+                .is_some_and(|i| !before[i..].bytes().any(|b| b.is_ascii_digit()))
+        };
+        let rank = if names("discharge") {
             3
-        } else if before.contains("date") || before.contains("seen") || before.contains("clinic") {
+        } else if names("date") || names("seen") || names("clinic") {
             2
         } else {
             0

@@ -9,7 +9,7 @@ use pest::iterators::Pair;
 use pest::Parser;
 
 use super::lexicon::{Kind, Label};
-use super::numbers::{parse_number, time_ref};
+use super::numbers::{parse_number, time_after, time_before, time_ref};
 use super::Doc;
 use crate::context::Target;
 use crate::grammar::{Rule, ValueParser};
@@ -464,6 +464,59 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
     crate::text::phrase_automaton(&AC, WORDS.iter().copied()).is_match(&doc.text[from..start])
 }
 
+/// An order to bring a value to a level: `titrating to SBP <140`, `replete K >4, Mg >2`,
+/// `wean to MAP >65`. The verb alone does not make a threshold (`KCl replacement started,
+/// K 3.4 today` is a measurement); a comparator right after the label does (common
+/// practice, no source).
+fn is_goal_order(doc: &Doc, start: usize, end: usize) -> bool {
+    let line = doc.line_at(start);
+    let mut lim = (end + 16).min(line.end).max(end);
+    while !doc.text.is_char_boundary(lim) {
+        lim -= 1;
+    }
+    let after = doc.text[end..lim]
+        .trim_start_matches([' ', '\t', ':', '='])
+        .to_ascii_lowercase();
+    let compared = after.starts_with(['<', '>', '≥', '≤'])
+        || ["above ", "below ", "over ", "under ", "at least "]
+            .iter()
+            .any(|w| after.starts_with(w));
+    if !compared {
+        return false;
+    }
+    let mut from = start.saturating_sub(48).max(line.start);
+    while !doc.text.is_char_boundary(from) {
+        from += 1;
+    }
+    const VERBS: &[&str] = &[
+        "titrat",
+        "replete",
+        "repleting",
+        "replace",
+        "replacing",
+        "supplement",
+        "wean",
+        "aiming",
+        "to achieve",
+        "to get",
+        "to bring",
+        "increase to",
+        "reduce to",
+        "goal",
+        "target",
+        "maintain",
+        "keep",
+    ];
+    // Within the label's own sentence.
+    let window = &doc.text[from..start];
+    let window = window
+        .rfind(". ")
+        .or_else(|| window.rfind("; "))
+        .map_or(window, |i| &window[i + 2..]);
+    static AC: std::sync::OnceLock<aho_corasick::AhoCorasick> = std::sync::OnceLock::new();
+    crate::text::phrase_automaton(&AC, VERBS.iter().copied()).is_match(window)
+}
+
 /// `Bloods on admission: ... creatinine 118`: a value the historical cue places at this
 /// stay's admission is an admission value of the series, not one from an earlier stay
 /// (`previous admission`, `before admission` are not).
@@ -512,6 +565,86 @@ fn later_value_owns_time_cue(doc: &Doc, ctx: &mut crate::model::Context, end: us
         ctx.temporality = Temporality::Current;
         ctx.cues.retain(|c| c.family != "historical");
     }
+}
+
+/// When a reading was taken, as the words around it say, where the grammar found no time
+/// word: a phrase right after it (`(5.4 two days ago)`, `90.2 kg at his last visit in
+/// September`, `was 10 st 12 lb on 22/10`), else a time word right before its label
+/// (`admit wt 226 lbs`, `last clinic weight 89 kg`). A phrase that counts back from the
+/// note (`two days ago`, `on Monday`) gives a date when the note date is known.
+fn written_time(doc: &Doc, r: &Reading, start: usize) -> (Option<TimeRef>, Option<String>) {
+    let mut time_ref = r.time_ref;
+    let mut date = r.date.clone();
+    let at = r.end.min(doc.text.len());
+    if doc.text.is_char_boundary(at) {
+        let line = doc.line_at(at);
+        let mut lim = (at + 96).min(line.end).max(at);
+        while !doc.text.is_char_boundary(lim) {
+            lim -= 1;
+        }
+        if let Some(p) = time_after(&doc.text[at..lim]) {
+            let note_day = doc
+                .note_date
+                .as_deref()
+                .and_then(crate::picture::days_from_iso);
+            // `in 2023`: a year before the note's year (a year that is not earlier says
+            // nothing of order).
+            let year_ok = p.date_at.is_none_or(|d| {
+                let y = doc.text[at + d..]
+                    .get(..4)
+                    .and_then(|y| y.parse::<i64>().ok());
+                match y {
+                    Some(y) if doc.text[at + d..].get(4..5) != Some("/") => {
+                        let note_year = doc
+                            .note_date
+                            .as_deref()
+                            .and_then(|n| n.get(..4))
+                            .and_then(|n| n.parse::<i64>().ok());
+                        note_year.is_none_or(|n| y < n)
+                    }
+                    _ => true,
+                }
+            });
+            if year_ok {
+                time_ref = time_ref.or(p.time_ref);
+                if date.is_none() {
+                    date = p
+                        .date_at
+                        .and_then(|d| doc.date_at(at + d))
+                        .map(|d| d.iso.clone())
+                        .or_else(|| {
+                            let day = note_day?;
+                            let back = match (p.days_ago, p.weekday) {
+                                (Some(n), _) => n,
+                                (None, Some(w)) => {
+                                    // 1970-01-01 was a Thursday (weekday 3).
+                                    let today = (day + 3).rem_euclid(7);
+                                    let back = (today - w).rem_euclid(7);
+                                    if back == 0 {
+                                        7
+                                    } else {
+                                        back
+                                    }
+                                }
+                                _ => return None,
+                            };
+                            Some(crate::picture::iso_from_days(day - back))
+                        });
+                }
+            }
+        }
+    }
+    if time_ref.is_none() && date.is_none() {
+        let line = doc.line_at(start);
+        let mut from = start.saturating_sub(32).max(line.start);
+        while !doc.text.is_char_boundary(from) {
+            from += 1;
+        }
+        if let Some(before) = doc.text.get(from..start) {
+            time_ref = time_before(before);
+        }
+    }
+    (time_ref, date)
 }
 
 /// Give each reading without a unit the last unit written before it in the order given
@@ -567,14 +700,11 @@ pub fn push(
     let end = r.end.max(start);
     let mut ctx = doc.engine.context(start, end, Target::Measurement, false);
     later_value_owns_time_cue(doc, &mut ctx, end);
-    let date = r
-        .date
-        .clone()
-        .or_else(|| doc.line_date(r.start))
-        .or_else(|| {
-            doc.episode_of(start)
-                .and_then(|i| doc.episodes[i].date.clone())
-        });
+    let (time_ref, written_date) = written_time(doc, r, start);
+    let date = written_date.or_else(|| doc.line_date(r.start)).or_else(|| {
+        doc.episode_of(start)
+            .and_then(|i| doc.episodes[i].date.clone())
+    });
     let time = doc.line_time(r.start);
     out.cover(start, end);
     out.measurements.push(Measurement {
@@ -588,7 +718,7 @@ pub fn push(
         assertion: ctx.assertion,
         temporality: ctx.temporality,
         experiencer: ctx.experiencer,
-        time_ref: r.time_ref.or_else(|| admission_cue(&ctx)),
+        time_ref: time_ref.or_else(|| admission_cue(&ctx)),
         range: r.range,
         qualifier: r.qualifier,
         unit_text: if unit_inferred {
@@ -658,11 +788,70 @@ fn weak_ok(doc: &Doc, label: Label, r: &Reading) -> bool {
     }
 }
 
+/// Whether the unit written after a label's value can be the label's concept: a unit of
+/// another dimension means the label belongs to a longer name (`Troponin T 34 ng/L`,
+/// `HR 3 mmol/L`) or the number is something else.
+/// Short words that are units only sometimes (`HR 104 ST` is sinus tachycardia, `s` and
+/// `in` are words) do not count.
+fn unit_fits(concept: MeasureConcept, r: &Reading) -> bool {
+    let Some(text) = r.unit_text.as_deref() else {
+        return true;
+    };
+    let t = text.trim();
+    let ambiguous = t.len() < 3
+        && t.chars().all(|c| c.is_ascii_alphabetic())
+        && !["kg", "lb", "ml", "cm"].contains(&t.to_ascii_lowercase().as_str());
+    ambiguous || units::ucum(t).is_none_or(|code| !units::other_dimension(concept, code))
+}
+
+/// A label that is part of a longer name rather than the measurement it names: a specimen
+/// word before a laboratory label (`urine Na 45`, `spot urine K`, `pleural fluid LDH`) or
+/// an analyte before a one-letter label (`Troponin T 34`). A number of six or more digits
+/// after a label (`UR 8812034`, an Australian unit-record number) is an identifier, not a
+/// value. Common practice, no source.
+fn part_of_other_name(doc: &Doc, label: Label, start: usize, end: usize) -> bool {
+    let line = doc.line_at(start);
+    let mut from = start.saturating_sub(24).max(line.start);
+    while !doc.text.is_char_boundary(from) {
+        from += 1;
+    }
+    let before = doc.text[from..start].to_ascii_lowercase();
+    let last_word = before
+        .trim_end_matches([' ', '\t', '-', ':'])
+        .rsplit(|c: char| !c.is_ascii_alphabetic())
+        .next()
+        .unwrap_or("");
+    const SPECIMEN: &[&str] = &[
+        "urine", "urinary", "spot", "stool", "csf", "fluid", "pleural", "ascitic", "drain",
+        "sweat", "faecal", "fecal",
+    ];
+    const ANALYTE: &[&str] = &["troponin", "trop", "hs", "tn", "ctn", "free", "total"];
+    if lab_concept(label).is_some() && SPECIMEN.contains(&last_word) {
+        return true;
+    }
+    if matches!(label, Label::TempWeak) && ANALYTE.contains(&last_word) {
+        return true;
+    }
+    let mut lim = (end + 24).min(line.end).max(end);
+    while !doc.text.is_char_boundary(lim) {
+        lim -= 1;
+    }
+    let after = doc.text[end..lim].trim_start_matches([' ', '\t', ':', '#', '-']);
+    let digits = after.bytes().take_while(u8::is_ascii_digit).count();
+    let rest = &after.as_bytes()[digits..];
+    let decimal =
+        matches!(rest.first(), Some(b'.' | b',')) && rest.get(1).is_some_and(u8::is_ascii_digit);
+    digits >= 6 && !decimal
+}
+
 /// Read every labelled value in the document.
 pub fn labelled(doc: &Doc, out: &mut Output) {
     for h in doc.hits {
         let Kind::Label(label) = h.kind else { continue };
-        if is_threshold(doc, h.start) {
+        if is_threshold(doc, h.start)
+            || is_goal_order(doc, h.start, h.end)
+            || part_of_other_name(doc, label, h.start, h.end)
+        {
             continue;
         }
         read_label(doc, out, label, h.start, h.end);
@@ -675,7 +864,7 @@ fn read_label(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
         if let Some(p) = parse_at(doc, rule, end) {
             let rs = simple_readings(p, end);
             for (i, r) in rs.iter().enumerate() {
-                if i == 0 && !weak_ok(doc, label, r) {
+                if i == 0 && (!weak_ok(doc, label, r) || !unit_fits(concept, r)) {
                     return;
                 }
                 push(

@@ -45,6 +45,9 @@ pub struct Doc<'a> {
     pub us_units: bool,
     /// The unit the document writes weights in, when it writes one consistently.
     pub weight_unit: Option<&'static str>,
+    /// The date the note is written on (as [`episodes::note_date`] finds it), for time
+    /// words relative to it (`two days ago`, `on Monday`).
+    pub note_date: Option<String>,
 }
 
 impl Doc<'_> {
@@ -186,10 +189,11 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
     let us_units = detect_us_units(text, opts.unit_system);
     let order = dates::resolve_order(text, opts.date_order, us_units);
     let scan = dates::scan_dates(text, order);
-    let default_year = scan.first_year();
+    let default_year = scan.note_year(text);
     let found_dates = scan.with_year(default_year);
     let episodes = episodes::find(text, &index, &found_dates);
     let engine = ContextEngine::new(text, &index, &sentences, &sections, &hits);
+    let note_date = episodes::note_date(text, &index, &found_dates, &episodes);
     let doc = Doc {
         text,
         flat: &flat,
@@ -201,6 +205,7 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
         episodes: &episodes,
         us_units,
         weight_unit: detect_weight_unit(text),
+        note_date: note_date.clone(),
     };
 
     let mut out = measure::Output::default();
@@ -216,7 +221,6 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
     sort_large_by_key(&mut measurements, |m| (m.span.start, m.concept));
     sort_large_by_key(&mut out.findings, |f| f.span.start);
     sort_large_by_key(&mut out.statements, |s| s.span.start);
-    let note_date = episodes::note_date(text, &index, &found_dates, &episodes);
     Extraction {
         sections: sections.clone(),
         episodes,

@@ -750,8 +750,9 @@ fn daily_series(notes: &[NoteRef], concept: MeasureConcept) -> Vec<SeriesPoint> 
         .collect()
 }
 
-/// [`daily_series`] with each point's sort key: a date, `""` for admission, or for an
-/// undated value `~NNNN-R` (note number, then 1 previous, 2 yesterday, 3 the note's day).
+/// [`daily_series`] with each point's sort key: a date, `""` for admission, `!NNNN` for an
+/// undated earlier value of note NNNN, or for another undated value `~NNNN-R` (note
+/// number, then 2 yesterday, 3 the note's day).
 fn daily_points(notes: &[NoteRef], concept: MeasureConcept) -> Vec<(String, SeriesPoint)> {
     let mut points: Vec<(String, SeriesPoint)> = Vec::new();
     for e in entries(notes, concept) {
@@ -767,7 +768,9 @@ fn daily_points(notes: &[NoteRef], concept: MeasureConcept) -> Vec<(String, Seri
             (None, Some(TimeRef::Admission) | Some(TimeRef::Baseline)) => {
                 (String::new(), "adm".to_string())
             }
-            (None, Some(TimeRef::Previous)) => (format!("~{:04}-1", e.note), format!("{note}prev")),
+            // An undated earlier value (`last clinic weight 89 kg`) precedes the dated
+            // values of the stay, after the admission values.
+            (None, Some(TimeRef::Previous)) => (format!("!{:04}", e.note), format!("{note}prev")),
             (None, Some(TimeRef::Yesterday)) => {
                 (format!("~{:04}-2", e.note), format!("{note}yest"))
             }

@@ -133,6 +133,28 @@ impl DateScan {
             .and_then(|y| y.parse().ok())
     }
 
+    /// The year a two-part date (`10/31`) of this text is read in: that of the first full
+    /// date that is not a date of birth (`DOB: 03/14/1951` names no year of the note's
+    /// events; common practice, no source), else of the first full date.
+    pub fn note_year(&self, text: &str) -> Option<i32> {
+        const BIRTH: &[&str] = &["dob", "d.o.b", "born", "birth"];
+        let birth = |d: &FoundDate| {
+            let mut from = d.start.saturating_sub(16);
+            while !text.is_char_boundary(from) {
+                from += 1;
+            }
+            let before = text.get(from..d.start).unwrap_or("").to_ascii_lowercase();
+            let before = before.rsplit('\n').next().unwrap_or("");
+            BIRTH.iter().any(|w| before.contains(w))
+        };
+        self.full
+            .iter()
+            .find(|d| !birth(d))
+            .and_then(|d| d.iso.get(..4))
+            .and_then(|y| y.parse().ok())
+            .or_else(|| self.first_year())
+    }
+
     /// All dates, the two-part ones given `default_year` (left out without one), by start.
     pub fn with_year(self, default_year: Option<i32>) -> Vec<FoundDate> {
         let mut out = self.full;
