@@ -523,7 +523,54 @@ const FINDINGS: &[Find] = &[
         F::Orthopnea,
         Present,
     ),
+    // Common practice, no source: crackles that clear on coughing are secretions, gone on
+    // re-examination.
+    f(
+        "few basal crackles which cleared on coughing",
+        F::Crackles,
+        Absent,
+    ),
+    f("Creps at R base, clear with cough", F::Crackles, Absent),
+    f(
+        "bibasal crackles not cleared by coughing",
+        F::Crackles,
+        Present,
+    ),
 ];
+
+#[test]
+fn swelling_with_a_local_cause_is_not_congestion() {
+    // Domain 03 §3.3: one-sided swelling suggests a local cause rather than heart failure.
+    let local = [
+        "R leg post-op swelling with dressing",
+        "Swollen left calf ?DVT, for doppler",
+        "L ankle swelling from cellulitis",
+        "right knee swelling after the fracture",
+    ];
+    for text in local {
+        let e = ex(text);
+        let present: Vec<_> = e
+            .findings
+            .iter()
+            .filter(|f| f.concept == F::PeripheralEdema && f.assertion == Present)
+            .collect();
+        assert!(present.is_empty(), "{text:?}: read as oedema {present:?}");
+    }
+    // Bilateral oedema stays oedema, even beside a local problem.
+    for text in [
+        "bilateral ankle swelling, post-op wound clean",
+        "Bilateral pitting oedema with cellulitis of the L shin",
+        "pitting oedema to knees",
+    ] {
+        let e = ex(text);
+        assert!(
+            e.findings
+                .iter()
+                .any(|f| f.concept == F::PeripheralEdema && f.assertion == Present),
+            "{text:?}: oedema lost"
+        );
+    }
+}
 
 #[test]
 fn finding_phrasings() {

@@ -49,6 +49,22 @@ fn clause_before<'t>(doc: &Doc<'t>, start: usize, max: usize) -> &'t str {
     &s[cut..]
 }
 
+/// Whether the clause of a swelling term gives it a local cause: surgery, a wound or
+/// dressing, a clot, an infection or an injury of one limb.
+fn local_swelling(doc: &Doc, start: usize, end: usize) -> bool {
+    static LOCAL: OnceLock<Regex> = OnceLock::new();
+    let local = re(
+        &LOCAL,
+        r"(?i)(?-u:\b)(?:post[- ]?op(?:erative)?|surgical|wound|dressings?|graft|harvest|\??dvt|thrombosis|cellulitis|infected|abscess|fracture|injury|trauma|sprain|haematoma|hematoma|bite|bursitis|gout|baker'?s cyst)(?-u:\b)",
+    );
+    let (before, after) = (clause_before(doc, start, 40), clause_after(doc, end, 40));
+    let both = |t: &str| {
+        let t = t.to_ascii_lowercase();
+        t.contains("bilat") || t.contains("both") || t.contains("symmetric")
+    };
+    (local.is_match(before) || local.is_match(after)) && !both(before) && !both(after)
+}
+
 fn edema_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
     static GRADE: OnceLock<Regex> = OnceLock::new();
     static LEVEL: OnceLock<Regex> = OnceLock::new();
@@ -159,6 +175,21 @@ fn crackles_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
 }
 
 fn trend_of(doc: &Doc, end: usize) -> Option<String> {
+    // "crackles which cleared on coughing", "creps clear with cough": secretions, gone on
+    // re-examination, so not there now (common practice, no source).
+    static COUGH: OnceLock<Regex> = OnceLock::new();
+    let cough = re(
+        &COUGH,
+        r"(?i)(?-u:\b)(not\s+|n't\s+|never\s+|without\s+)?clear(?:ed|s|ing)?\s+(?:on|with|after|by)\s+(?:a\s+)?cough",
+    );
+    let (_, b) = window(doc, end, end, 0, 48);
+    let sentence = &doc.text[end..b];
+    let sentence = &sentence[..sentence.find(['.', ';', '\n']).unwrap_or(sentence.len())];
+    if let Some(c) = cough.captures(sentence) {
+        if c.get(1).is_none() {
+            return Some("resolved".to_string());
+        }
+    }
     static TREND: OnceLock<Regex> = OnceLock::new();
     let t = re(
         &TREND,
@@ -399,6 +430,13 @@ pub fn findings(doc: &Doc, out: &mut Output) {
                 }
             }
         };
+        // "R leg post-op swelling with dressing", "swollen L calf ?DVT": swelling with a
+        // local cause is not the bilateral oedema of congestion (domain 03 §3.3: one-sided
+        // swelling suggests a local cause rather than HF).
+        if concept == FindingConcept::PeripheralEdema && present && local_swelling(doc, start, end)
+        {
+            continue;
+        }
         match concept {
             FindingConcept::PeripheralEdema => edema_detail(doc, start, end, &mut detail),
             FindingConcept::Crackles => crackles_detail(doc, start, end, &mut detail),
@@ -591,13 +629,104 @@ fn hf_near(hf: &[(usize, usize)], start: usize, end: usize) -> &[(usize, usize)]
     &hf[a..b.max(a)]
 }
 
+/// `HF` written as an oxygen device: `on HF 50L/min FiO2 0.6`, `HF 40 L 35%`, `HF at 60
+/// lpm`. A flow in litres, a percentage or an FiO2 right after the bare abbreviation makes
+/// it high-flow oxygen, not heart failure (domain 03, abbreviations: "HF 40 L" = oxygen;
+/// domain 05: oxygen flow in L/min).
+fn is_high_flow_oxygen(doc: &Doc, start: usize, end: usize) -> bool {
+    if !doc.text[start..end].eq_ignore_ascii_case("hf") {
+        return false;
+    }
+    let line = doc.line_at(start);
+    let mut lim = (end + 24).min(line.end).max(end);
+    while !doc.text.is_char_boundary(lim) {
+        lim -= 1;
+    }
+    let after = doc.text[end..lim].to_ascii_lowercase();
+    let after = after.trim_start_matches([' ', '\t', ':', '@']);
+    let after = after.strip_prefix("at ").unwrap_or(after).trim_start();
+    if after.starts_with("fio2") {
+        return true;
+    }
+    let digits = after
+        .bytes()
+        .take_while(|b| b.is_ascii_digit() || *b == b'.')
+        .count();
+    if digits == 0 {
+        return false;
+    }
+    let unit = after[digits..].trim_start();
+    unit.starts_with('%')
+        || unit.starts_with("lpm")
+        || unit.starts_with("l/m")
+        || unit.starts_with("litre")
+        || unit.starts_with("liter")
+        || (unit.starts_with('l') && !unit[1..].starts_with(|c: char| c.is_ascii_alphabetic()))
+}
+
+/// A volume word that reports an image, not the clinician's view of the patient: `no
+/// fluid overload on CXR`, `fluid overload on chest x-ray per radiology`, `CXR: no
+/// evidence of fluid overload`. The stated volume status is the clinician's bedside
+/// judgement of the whole patient (domain 02, the clinician's stated volume status);
+/// common practice, no source, for imaging wording.
+fn on_imaging(doc: &Doc, start: usize, end: usize) -> bool {
+    const IMAGING: &[&str] = &[
+        "cxr",
+        "x-ray",
+        "xray",
+        "x ray",
+        "radiograph",
+        "radiolog",
+        "imaging",
+        "chest film",
+        " film",
+        " ct ",
+        "ct chest",
+        "ultrasound",
+        "lung us",
+        "pocus",
+        "echo",
+    ];
+    let line = doc.line_at(start);
+    let mut lim = (end + 40).min(line.end).max(end);
+    while !doc.text.is_char_boundary(lim) {
+        lim -= 1;
+    }
+    let mut from = start.saturating_sub(32).max(line.start);
+    while !doc.text.is_char_boundary(from) {
+        from += 1;
+    }
+    // Within the term's own sentence.
+    let after = doc.text[end..lim].to_ascii_lowercase();
+    let after = after.split(['.', ';']).next().unwrap_or("");
+    let before = doc.text[from..start].to_ascii_lowercase();
+    let before = before.rsplit(['.', ';']).next().unwrap_or("");
+    let after_ok = after
+        .trim_start()
+        .strip_prefix("on ")
+        .or_else(|| after.trim_start().strip_prefix("per "))
+        .or_else(|| after.trim_start().strip_prefix("seen on "))
+        .is_some_and(|rest| IMAGING.iter().any(|w| format!(" {rest} ").contains(w)));
+    // `CXR: no evidence of fluid overload`: the image word opens the term's own clause.
+    let padded = format!(" {before}");
+    let before_ok = IMAGING.iter().any(|w| {
+        padded.rfind(w).is_some_and(|i| {
+            let gap = &padded[i + w.len()..];
+            !gap.contains(',') && !gap.contains(" and ") && !gap.contains(" but ")
+        })
+    });
+    after_ok || after.contains("per radiolog") || before_ok
+}
+
 /// Statements from statement terms.
 pub fn statements(doc: &Doc, out: &mut Output) {
     let terms: Vec<_> = doc
         .hits
         .iter()
         .filter_map(|h| match h.kind {
-            Kind::Statement(k, v) => Some((h.start, h.end, k, v)),
+            Kind::Statement(k, v) if !is_high_flow_oxygen(doc, h.start, h.end) => {
+                Some((h.start, h.end, k, v))
+            }
             _ => None,
         })
         .collect();
@@ -705,6 +834,7 @@ pub fn statements(doc: &Doc, out: &mut Output) {
                     push(out, StatementKind::Acuity, value, start, end);
                 }
             }
+            StatementKey::VolumeStatus if on_imaging(doc, start, end) => {}
             StatementKey::VolumeStatus => push(out, StatementKind::VolumeStatus, value, start, end),
             StatementKey::ProfileWord => {
                 let perf = if value.starts_with("warm") {

@@ -461,7 +461,18 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
         "re-check",
     ];
     static AC: std::sync::OnceLock<aho_corasick::AhoCorasick> = std::sync::OnceLock::new();
-    crate::text::phrase_automaton(&AC, WORDS.iter().copied()).is_match(&doc.text[from..start])
+    // Whole words only: "in keeping with NYHA II" holds no "keep", "claim" no "aim".
+    let window = &doc.text[from..start];
+    let bytes = window.as_bytes();
+    crate::text::phrase_automaton(&AC, WORDS.iter().copied())
+        .find_overlapping_iter(window)
+        .any(|m| {
+            let before_ok = m.start() == 0 || !bytes[m.start() - 1].is_ascii_alphanumeric();
+            let after_ok = m.end() >= bytes.len()
+                || bytes[m.end() - 1] == b' '
+                || !bytes[m.end()].is_ascii_alphanumeric();
+            before_ok && after_ok
+        })
 }
 
 /// An order to bring a value to a level: `titrating to SBP <140`, `replete K >4, Mg >2`,
@@ -1590,21 +1601,89 @@ fn nyha(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usize) {
         return;
     }
     let roman = ["I", "II", "III", "IV"][(class - 1) as usize];
-    let ctx = doc.engine.context(start, pend, Target::Statement, false);
+    let mut ctx = doc.engine.context(start, pend, Target::Statement, false);
+    // "Symptoms consistent with NYHA class II": the class is the clinician's grading of
+    // the symptoms, not an uncertain diagnosis (04 §4.3 lists "consistent with" as a
+    // possibility cue for diagnoses; NYHA is a grading, common practice, no source).
+    if ctx.assertion == crate::model::Assertion::Possible
+        && ctx
+            .cues
+            .iter()
+            .filter(|c| c.family == "possibility")
+            .all(|c| GRADING_WORDS.contains(&c.text.to_ascii_lowercase().as_str()))
+    {
+        ctx.assertion = crate::model::Assertion::Present;
+        ctx.cues.retain(|c| c.family != "possibility");
+    }
+    let line_end = doc.line_at(start).end.max(pend);
+    let rest = doc.text.get(pend..line_end).unwrap_or("");
+    // "NYHA II-III on adm": the class at admission, not today's (a day-3 note's class may
+    // have changed); it counts when no current class is written. A baseline class is
+    // still the patient's class ("NYHA III at baseline").
+    let at_admission = {
+        static RE: std::sync::OnceLock<regex::Regex> = std::sync::OnceLock::new();
+        super::numbers::cached(
+            &RE,
+            r"(?i)^\s*\)?\s*(?:on|at)\s+(?:adm\b|admission|presentation|arrival)",
+        )
+        .is_match(rest)
+    };
     out.cover(start, pend);
     out.statements.push(Statement {
         kind: StatementKind::Nyha,
         value: roman.to_string(),
         assertion: ctx.assertion,
-        // A baseline class is still the patient's class ("NYHA III at baseline").
-        temporality: crate::model::Temporality::Current,
+        temporality: if at_admission {
+            crate::model::Temporality::Historical
+        } else {
+            crate::model::Temporality::Current
+        },
         experiencer: ctx.experiencer,
         text: doc.text[start..pend].to_string(),
         span: doc.index.span(start, pend),
         section: doc.section_of(start),
         episode: doc.episode_of(start),
     });
+    // "NYHA II usually, today more like III": a class for today after the usual one. It
+    // is the later statement, so it is the current class.
+    static TODAY: std::sync::OnceLock<regex::Regex> = std::sync::OnceLock::new();
+    let today = super::numbers::cached(
+        &TODAY,
+        r"(?i)^[^.;]{0,24}?[,;]?\s*(?:but\s+)?(?:today|now|currently|at present|this week)\s*(?:(?:is|seems|looks|appears|probably|likely|more like|closer to|nearer to|nearer|more|like)\s*){0,3}(?:(?:nyha|class)\s*(?:class\s*)?(?P<c>iv|iii|ii|i|[1-4])|(?-i:(?P<r>IV|III|II)))\b",
+    );
+    if let Some(c) = today.captures(rest) {
+        // A bare class must be an upper-case Roman numeral of two letters or more ("now I
+        // think" is no class I).
+        let Some(m) = c.name("c").or_else(|| c.name("r")) else {
+            return;
+        };
+        if let Some(k) = nyha_class(m.as_str()) {
+            let (s2, e2) = (pend + m.start(), pend + m.end());
+            let ctx2 = doc.engine.context(s2, e2, Target::Statement, false);
+            out.cover(s2, e2);
+            out.statements.push(Statement {
+                kind: StatementKind::Nyha,
+                value: ["I", "II", "III", "IV"][(k - 1) as usize].to_string(),
+                assertion: ctx2.assertion,
+                temporality: crate::model::Temporality::Current,
+                experiencer: ctx2.experiencer,
+                text: doc.text[start..e2].to_string(),
+                span: doc.index.span(start, e2),
+                section: doc.section_of(start),
+                episode: doc.episode_of(start),
+            });
+        }
+    }
 }
+
+/// Possibility words that, before a NYHA class, grade the symptoms rather than doubt them.
+const GRADING_WORDS: &[&str] = &[
+    "consistent with",
+    "in keeping with",
+    "compatible with",
+    "in line with",
+    "suggestive of",
+];
 
 fn nyha_class(s: &str) -> Option<u8> {
     let s = s.to_ascii_lowercase();

@@ -100,7 +100,26 @@ const CUES: &[(DocKind, &str, u32)] = &[
     (Nursing, "nursing note", 12),
     (Nursing, "nursing entry", 12),
     (Nursing, "nursing", 5),
-    (Nursing, "nurse", 4),
+    // A nurse who records observations writes a nursing entry; a specialist or advanced
+    // practice nurse who reviews the patient and changes treatment writes a clinical review
+    // (common practice, no source). "nurse" alone ("nurse notes she was upright") names no
+    // author, so it is no cue.
+    (Nursing, "staff nurse", 6),
+    (Nursing, "nurse entry", 10),
+    (Nursing, "nursing staff", 1),
+    (Progress, "specialist nurse", 8),
+    (Progress, "nurse specialist", 8),
+    (Progress, "hf nurse", 8),
+    (Progress, "heart failure nurse", 8),
+    (Progress, "nurse practitioner", 8),
+    (Progress, "nurse-led", 6),
+    (Progress, "telephone review", 7),
+    (Progress, "telephone follow-up", 7),
+    (Progress, "phone review", 7),
+    (Progress, "virtual review", 7),
+    (Progress, "video review", 7),
+    (Progress, "home visit", 6),
+    (Progress, "registrar review", 7),
     (Nursing, "rn", 3),
     (Nursing, "obs chart", 6),
     (Nursing, "observation chart", 6),
@@ -343,6 +362,26 @@ mod tests {
     fn the_author_role_qualifies_the_note_type() {
         assert_eq!(
             kind("Nursing progress note - Ward 9\nPt comfortable overnight.\n"),
+            DocKind::NursingObs
+        );
+    }
+
+    #[test]
+    fn a_specialist_nurse_review_is_a_clinical_review() {
+        // Common practice, no source: heart-failure specialist nurses and nurse
+        // practitioners review patients and change diuretics; their notes are reviews, and
+        // "nurse" in the body names no author.
+        for t in [
+            "HF nurse telephone follow-up   01/12/2026\nPost-discharge call, day 5.\n",
+            "HF Specialist Nurse - telephone review   17 Nov 2026\nSpoke to patient.\n",
+            "Community Palliative Care / HF Nurse Joint Home Visit   22/11/2026\n",
+            "Heart failure nurse practitioner clinic review\nWeight up 2 kg.\n",
+            "Medical Registrar Review 03:15\nCalled re: sats 90% on RA.\n\nNurse notes she is upright.\n",
+        ] {
+            assert_eq!(kind(t), DocKind::ProgressNote, "{t:?}");
+        }
+        assert_eq!(
+            kind("Staff nurse entry 22:00\nObs stable. Pt settled.\n"),
             DocKind::NursingObs
         );
     }

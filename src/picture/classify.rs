@@ -203,6 +203,26 @@ fn chronic_documented(ex: &Extraction, decompensated: &Statement) -> Option<Stri
     None
 }
 
+/// Whether the note names heart failure for the patient (affirmed or possible), gives its
+/// acuity or a NYHA class. The HF types are categories of heart failure by ejection
+/// fraction (Universal Definition of Heart Failure, Bozkurt et al. 2021, section 4): an
+/// LVEF of 58 % in a patient without heart failure ("No history of heart failure. Echo:
+/// LVEF 58 %") is a normal ventricle, not HFpEF.
+fn hf_documented(ex: &Extraction) -> bool {
+    use crate::model::Assertion;
+    ex.statements.iter().any(|s| {
+        s.experiencer == Experiencer::Patient
+            && matches!(s.assertion, Assertion::Present | Assertion::Possible)
+            && matches!(
+                s.kind,
+                StatementKind::HeartFailure
+                    | StatementKind::HfType
+                    | StatementKind::Acuity
+                    | StatementKind::Nyha
+            )
+    })
+}
+
 /// A current acute or decompensated statement about the patient, if any.
 fn current_acute<'a>(ex: &'a Extraction, tl: &Timeline) -> Option<&'a Statement> {
     latest(ex, tl, StatementKind::Acuity, |v| {
@@ -273,7 +293,7 @@ pub fn build(ex: &Extraction, tl: &Timeline) -> Classifications {
     } else if let Some((s, v)) = latest_historical(ex, tl, StatementKind::HfType, hf_type) {
         c.hf_type = Some(v.into());
         c.sources.hf_type = Some(stated(s, Some(HISTORICAL_NOTE.into())));
-    } else if let Some(m) = latest_lvef(ex, tl) {
+    } else if let Some(m) = latest_lvef(ex, tl).filter(|_| hf_documented(ex)) {
         let cat = classify_lvef(m);
         if let Some(k) = cat.category {
             c.hf_type = Some(k.into());
@@ -328,7 +348,8 @@ mod tests {
             (50.0, "hfpef"),
             (40.5, "hfmref"),
         ] {
-            let mut n = Note::new("Previous echo LVEF 60%. Echo today LVEF x%.");
+            let mut n = Note::new("Heart failure. Previous echo LVEF 60%. Echo today LVEF x%.");
+            n.state("Heart failure", K::HeartFailure, "hf");
             n.measure("LVEF 60%", M::Lvef, 60.0).time_ref = Some(TimeRef::Previous);
             n.measure("LVEF x%", M::Lvef, ef);
             let c = run(&n);
@@ -337,6 +358,26 @@ mod tests {
             assert_eq!(src.basis, "derived");
             assert_eq!(src.text, "LVEF x%");
         }
+    }
+
+    #[test]
+    fn no_type_is_derived_without_heart_failure() {
+        // Universal Definition of Heart Failure (Bozkurt et al. 2021): the EF categories
+        // classify heart failure; an LVEF alone, or with heart failure denied, gives none.
+        let mut n = Note::new("AF for cardioversion. Echo LVEF 58%.");
+        n.measure("LVEF 58%", M::Lvef, 58.0);
+        assert_eq!(run(&n).hf_type, None);
+        let mut n = Note::new("No history of heart failure. Echo LVEF 58%.");
+        n.statement("heart failure", K::HeartFailure, "hf")
+            .assertion = Assertion::Absent;
+        n.measure("LVEF 58%", M::Lvef, 58.0);
+        assert_eq!(run(&n).hf_type, None);
+        // A possible heart failure still gets its category, marked as derived.
+        let mut n = Note::new("Possible new heart failure. Echo LVEF 35%.");
+        n.statement("heart failure", K::HeartFailure, "hf")
+            .assertion = Assertion::Possible;
+        n.measure("LVEF 35%", M::Lvef, 35.0);
+        assert_eq!(run(&n).hf_type.as_deref(), Some("hfref"));
     }
 
     #[test]
