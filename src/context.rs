@@ -136,6 +136,82 @@ fn expands(gap: &str) -> bool {
     (1..=6).contains(&abbr.len()) && abbr.bytes().all(|b| b.is_ascii_alphanumeric())
 }
 
+/// Whether the words right after a historical cue give the earlier state it dates
+/// (`previously normal`, `previously to knees`, `previously 5.2`, `was 30% before`), so
+/// the cue looks forward. Common practice, no source.
+fn names_earlier_state(after: &str) -> bool {
+    let t = after.trim_start_matches([' ', '\t', ':']);
+    if t.starts_with(|c: char| c.is_ascii_digit()) {
+        return true;
+    }
+    let w: String = t
+        .chars()
+        .take_while(|c| c.is_ascii_alphabetic() || *c == '-')
+        .collect::<String>()
+        .to_ascii_lowercase();
+    matches!(
+        w.as_str(),
+        "normal"
+            | "to"
+            | "up"
+            | "mild"
+            | "mildly"
+            | "moderate"
+            | "moderately"
+            | "severe"
+            | "severely"
+            | "preserved"
+            | "reduced"
+            | "impaired"
+            | "good"
+            | "fine"
+            | "well"
+            | "independent"
+            | "higher"
+            | "lower"
+            | "better"
+            | "worse"
+            | "stable"
+            | "trace"
+            | "none"
+            | "nil"
+            | "absent"
+    )
+}
+
+/// `Previous echo (2022): LVEF 55%`, `Prior TTE (outside hospital) - EF 60%`: a short
+/// bracketed aside closed within the gap (a date, a place, a method) is part of the cue's
+/// own phrase, so the cue reaches across it. An unclosed bracket still stops it.
+fn closed_aside(gap: &str) -> bool {
+    let mut depth = 0usize;
+    let mut inside = 0usize;
+    for c in gap.chars() {
+        match c {
+            '(' | '[' => {
+                if depth > 0 {
+                    return false;
+                }
+                depth = 1;
+                inside = 0;
+            }
+            ')' | ']' => {
+                if depth == 0 {
+                    return false;
+                }
+                depth = 0;
+            }
+            _ if depth > 0 => {
+                inside += c.len_utf8();
+                if inside > 24 {
+                    return false;
+                }
+            }
+            _ => {}
+        }
+    }
+    depth == 0
+}
+
 /// `SOB ? cause`, `oedema ? aetiology`: the question is about the cause, not the sign.
 fn queries_a_cause(after: &str) -> bool {
     let w: String = after
@@ -388,7 +464,9 @@ impl<'a> ContextEngine<'a> {
                 (end, c.start)
             };
             if (self.brackets_between(gap_a, gap_b)
-                && !(before && expands(&self.text[gap_a..gap_b])))
+                && !(before
+                    && (expands(&self.text[gap_a..gap_b])
+                        || closed_aside(&self.text[gap_a..gap_b]))))
                 || self.terminated(gap_a, gap_b, family)
             {
                 continue;
@@ -458,7 +536,13 @@ impl<'a> ContextEngine<'a> {
                 }
                 Family::Hypothetical if before => hypothetical = Some(*c),
                 Family::Historical => {
-                    let reach = before || (words <= 4 && self.nearest_target_before(c.start, end));
+                    // "LVEF 38%, previously normal", "trace at ankles, previously to knees":
+                    // a cue followed by the earlier state it dates describes that state, not
+                    // the target before it.
+                    let reach = before
+                        || (words <= 4
+                            && self.nearest_target_before(c.start, end)
+                            && !names_earlier_state(&self.text[c.end..]));
                     if reach {
                         historical = Some(*c);
                     }

@@ -531,6 +531,15 @@ const FINDINGS: &[Find] = &[
         Absent,
     ),
     f("Creps at R base, clear with cough", F::Crackles, Absent),
+    // Domain 02 (congestion signs: "sleeping in chair"); common practice, no source, for
+    // the other wordings. After "although" the observed sign is read on its own.
+    f(
+        "No orthopnoea reported by pt, although nurse notes she has been sleeping sat bolt upright in chair",
+        F::Orthopnea,
+        Present,
+    ),
+    f("Now sleeps in recliner chair every night", F::Orthopnea, Present),
+    f("He sleeps sitting up most nights", F::Orthopnea, Present),
     f(
         "bibasal crackles not cleared by coughing",
         F::Crackles,

@@ -128,3 +128,102 @@ fn no_hf_type_from_lvef_without_heart_failure() {
         tidemark::picture::build(&ex("Heart failure admission. Echo: LVEF 35%.")).classifications;
     assert_eq!(c.hf_type.as_deref(), Some("hfref"));
 }
+
+#[test]
+fn a_corrected_label_is_denied() {
+    // Common practice, no source: a type the note itself corrects is not the stated type;
+    // the heart failure stays named.
+    for (text, refuted) in [
+        (
+            "Note: in the ED letter this was recorded as \"HFpEF\" - this is incorrect, please amend.",
+            "hfpef",
+        ),
+        (
+            "Previously labelled HFpEF, which was wrong: LVEF 35% on this echo.",
+            "hfpef",
+        ),
+        ("Erroneously documented as HFrEF in the GP letter.", "hfref"),
+        ("HFpEF (in error - please amend to HFrEF)", "hfpef"),
+    ] {
+        let e = ex(text);
+        let types: Vec<_> = e
+            .statements
+            .iter()
+            .filter(|s| s.kind == StatementKind::HfType && s.value == refuted)
+            .map(|s| s.assertion)
+            .collect();
+        assert!(!types.is_empty(), "{text:?}: no type read");
+        assert!(
+            types.iter().all(|a| *a == Assertion::Absent),
+            "{text:?}: {types:?}"
+        );
+        assert!(named_hf(&e) > 0, "{text:?}: heart failure lost");
+    }
+    // The type it is corrected to stands.
+    let e = ex("HFpEF (in error - please amend to HFrEF)");
+    assert!(e.statements.iter().any(|s| s.kind == StatementKind::HfType
+        && s.value == "hfref"
+        && s.assertion == Assertion::Present));
+    // An affirmed type stays affirmed.
+    let e = ex("HFpEF, correct diuretic dose confirmed.");
+    assert!(e
+        .statements
+        .iter()
+        .any(|s| s.kind == StatementKind::HfType && s.assertion == Assertion::Present));
+}
+
+#[test]
+fn a_bracketed_date_does_not_stop_a_time_cue_and_an_earlier_state_keeps_the_present() {
+    // 04 §4.3 lists "previous" and "previously" as historical cues; common practice, no
+    // source, for the bracketed date inside the cue's phrase and for "previously <state>"
+    // dating the state after it.
+    let lvef = |text: &str| -> Vec<(f64, Temporality)> {
+        ex(text)
+            .measurements
+            .into_iter()
+            .filter(|m| m.concept == tidemark::model::MeasureConcept::Lvef)
+            .map(|m| (m.value, m.temporality))
+            .collect()
+    };
+    assert_eq!(
+        lvef("Previous echo (2022): LVEF 55%, normal LV size."),
+        [(55.0, Temporality::Historical)]
+    );
+    assert_eq!(
+        lvef("Prior TTE (outside hospital) - LVEF 60%."),
+        [(60.0, Temporality::Historical)]
+    );
+    assert_eq!(
+        lvef("Heart failure - new finding of LVEF 38%, previously normal."),
+        [(38.0, Temporality::Current)]
+    );
+    // A cue at the end of its clause still dates the value before it.
+    assert_eq!(
+        lvef("LVEF 30% previously."),
+        [(30.0, Temporality::Historical)]
+    );
+    let e = ex("Oedema: trace at ankles, previously to knees");
+    let oedema: Vec<_> = e
+        .findings
+        .iter()
+        .filter(|f| f.concept == tidemark::model::FindingConcept::PeripheralEdema)
+        .map(|f| (f.assertion, f.temporality))
+        .collect();
+    assert_eq!(oedema, [(Assertion::Present, Temporality::Current)]);
+}
+
+#[test]
+fn a_volume_state_not_yet_reached_is_not_stated() {
+    // Common practice, no source: "approaching euvolaemia" says the patient is not there
+    // yet, so it is no stated volume status to weigh against the findings.
+    for text in [
+        "Approaching euvolaemia.",
+        "Nearly euvolaemic, one more day of IV.",
+        "Moving towards euvolaemia.",
+    ] {
+        let c = tidemark::picture::build(&ex(text)).classifications;
+        assert_eq!(c.volume_status, None, "{text:?}");
+    }
+    let c = tidemark::picture::build(&ex("Euvolaemic today.")).classifications;
+    assert!(c.volume_status.is_some());
+}

@@ -200,3 +200,45 @@ fn a_partial_date_takes_the_notes_year_not_the_birth_year() {
         .expect("creatinine read");
     assert_eq!(cr.date.as_deref(), Some("2026-10-31"));
 }
+
+#[test]
+fn this_admission_is_the_stay_not_the_moment_of_admission() {
+    // Common practice, no source: "echo this admission" dates the echo to the stay; only
+    // "admission" alone or "on admission" names the moment of admission.
+    let e = ex("Echo this admission: LVEF 35%. During admission Cr 150.");
+    assert!(
+        e.measurements.iter().all(|m| m.time_ref.is_none()),
+        "{:?}",
+        e.measurements
+    );
+    let e = ex("Admission weight 80 kg");
+    assert_eq!(e.measurements[0].time_ref, Some(TimeRef::Admission));
+}
+
+#[test]
+fn a_value_restated_in_another_unit_is_one_reading() {
+    // Conversion factors: 1 lb = 0.45359237 kg (international avoirdupois pound, UCUM
+    // [lb_av]); creatinine 1 mg/dL = 88.4 µmol/L (domain 05 §5.3). A bracketed or slashed
+    // restatement that agrees is the same reading written twice.
+    for (text, concept) in [
+        ("Wt today 204 lbs (92.5 kg)", M::Weight),
+        ("Weight 80 kg / 176 lb", M::Weight),
+        ("Cr 1.9 mg/dL (168 umol/L)", M::Creatinine),
+    ] {
+        let n = ex(text)
+            .measurements
+            .iter()
+            .filter(|m| m.concept == concept)
+            .count();
+        assert_eq!(n, 1, "{text:?}");
+    }
+    // Two different values in two units stay two readings.
+    let e = ex("Wt 204 lbs (was 90 kg at clinic)");
+    assert_eq!(
+        e.measurements
+            .iter()
+            .filter(|m| m.concept == M::Weight)
+            .count(),
+        2
+    );
+}

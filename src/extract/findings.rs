@@ -664,6 +664,17 @@ fn is_high_flow_oxygen(doc: &Doc, start: usize, end: usize) -> bool {
         || (unit.starts_with('l') && !unit[1..].starts_with(|c: char| c.is_ascii_alphabetic()))
 }
 
+/// Whether the words before a volume term say the patient is short of that state:
+/// `approaching euvolaemia`, `nearly euvolaemic`, `close to dry weight`, `towards euvolaemia`.
+fn short_of(doc: &Doc, start: usize) -> bool {
+    static NEAR: OnceLock<Regex> = OnceLock::new();
+    let near = re(
+        &NEAR,
+        r"(?i)(?-u:\b)(?:approaching|nearing|near|nearly|almost|close\s+to|closer\s+to|towards?|getting\s+to|moving\s+towards?|heading\s+towards?|not\s+yet|not\s+quite)\s*$",
+    );
+    near.is_match(clause_before(doc, start, 32))
+}
+
 /// A volume word that reports an image, not the clinician's view of the patient: `no
 /// fluid overload on CXR`, `fluid overload on chest x-ray per radiology`, `CXR: no
 /// evidence of fluid overload`. The stated volume status is the clinician's bedside
@@ -718,6 +729,35 @@ fn on_imaging(doc: &Doc, start: usize, end: usize) -> bool {
     after_ok || after.contains("per radiolog") || before_ok
 }
 
+/// Whether the note corrects the label at `start..end` in the same sentence: `recorded as
+/// "HFpEF" - this is incorrect`, `"HFpEF" (sic) was wrong`, `erroneously documented as
+/// HFpEF`, `HFpEF in error - please amend`. Common practice, no source (a correction of
+/// the record, as clinical documentation queries ask for).
+fn refuted(doc: &Doc, start: usize, end: usize) -> bool {
+    static AFTER: OnceLock<Regex> = OnceLock::new();
+    static BEFORE: OnceLock<Regex> = OnceLock::new();
+    let after_re = re(
+        &AFTER,
+        r#"(?i)^["'”’)\]]?\s*(?:[-–—,:;(]\s*)?(?:(?:this|that|which|it)\s+)?(?:(?:is|was|has\s+been|had\s+been)\s+)?(?:incorrect(?:ly)?|wrong(?:ly)?|in\s+error|erroneous(?:ly)?|not\s+correct|inaccurate|a\s+mistake|mistaken|corrected|amended|please\s+amend|superseded|refuted|not\s+supported|ruled\s+out|excluded)(?-u:\b)"#,
+    );
+    let before_re = re(
+        &BEFORE,
+        r#"(?i)(?:incorrectly|erroneously|wrongly|mistakenly|previously\s+mis)\w*\s+(?:\w+\s+){0,3}(?:as\s+)?["'“‘(]?\s*$"#,
+    );
+    let line = doc.line_at(start);
+    let mut lim = (end + 48).min(line.end).max(end);
+    while !doc.text.is_char_boundary(lim) {
+        lim -= 1;
+    }
+    let mut from = start.saturating_sub(48).max(line.start);
+    while !doc.text.is_char_boundary(from) {
+        from += 1;
+    }
+    let before = &doc.text[from..start];
+    let before = &before[before.rfind(['.', ';']).map_or(0, |i| i + 1)..];
+    after_re.is_match(&doc.text[end..lim]) || before_re.is_match(before)
+}
+
 /// Statements from statement terms.
 pub fn statements(doc: &Doc, out: &mut Output) {
     let terms: Vec<_> = doc
@@ -739,6 +779,11 @@ pub fn statements(doc: &Doc, out: &mut Output) {
         .collect();
     let push = |out: &mut Output, kind: StatementKind, value: &str, start: usize, end: usize| {
         let mut ctx = doc.engine.context(start, end, Target::Statement, false);
+        // `recorded as "HFpEF" - this is incorrect, please amend`: a type or acuity the note
+        // corrects is denied (the heart failure itself stays named).
+        if kind != StatementKind::HeartFailure && refuted(doc, start, end) {
+            ctx.assertion = crate::model::Assertion::Absent;
+        }
         // "Admitted with acute on chronic HFpEF" names this admission's diagnosis: an
         // admission or presentation cue dates findings, not the diagnosis itself.
         if matches!(
@@ -835,6 +880,16 @@ pub fn statements(doc: &Doc, out: &mut Output) {
                 }
             }
             StatementKey::VolumeStatus if on_imaging(doc, start, end) => {}
+            StatementKey::VolumeStatus if short_of(doc, start) => {
+                // "Approaching euvolaemia", "nearly dry": a direction, not the state; the
+                // note does not state the patient is there (common practice, no source).
+                push(out, StatementKind::VolumeStatus, value, start, end);
+                if let Some(s) = out.statements.last_mut() {
+                    if s.assertion == crate::model::Assertion::Present {
+                        s.assertion = crate::model::Assertion::Possible;
+                    }
+                }
+            }
             StatementKey::VolumeStatus => push(out, StatementKind::VolumeStatus, value, start, end),
             StatementKey::ProfileWord => {
                 let perf = if value.starts_with("warm") {

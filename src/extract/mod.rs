@@ -219,6 +219,7 @@ pub fn extract(text: &str, opts: &ExtractOptions) -> Extraction {
 
     let mut measurements = dedupe(out.measurements);
     sort_large_by_key(&mut measurements, |m| (m.span.start, m.concept));
+    drop_conversions(text, &mut measurements);
     sort_large_by_key(&mut out.findings, |f| f.span.start);
     sort_large_by_key(&mut out.statements, |s| s.span.start);
     Extraction {
@@ -264,6 +265,45 @@ fn dedupe(mut ms: Vec<Measurement>) -> Vec<Measurement> {
         }
     }
     out
+}
+
+/// `Wt 204 lbs (92.5 kg)`, `T 101.3 F / 38.5 C`, `Cr 1.9 mg/dL (168 umol/L)`: a value
+/// restated in another unit right after itself, in brackets or after a slash or equals
+/// sign, is one reading written twice, not a second reading (and not a mix of unit
+/// systems). The restatement is dropped when both units are written and the two agree to
+/// within 1.5 % (rounding of a conversion; common practice, no source). `measurements` is
+/// sorted by start.
+fn drop_conversions(text: &str, measurements: &mut Vec<Measurement>) {
+    let mut drop = vec![false; measurements.len()];
+    for i in 1..measurements.len() {
+        let (a, b) = (&measurements[i - 1], &measurements[i]);
+        if a.concept != b.concept || a.unit_inferred || b.unit_inferred || a.unit == b.unit {
+            continue;
+        }
+        let (Some(qa), Some(qb)) = (a.normalized, b.normalized) else {
+            continue;
+        };
+        let Some(gap) = text.get(a.span.end..b.span.start) else {
+            continue;
+        };
+        let joined = gap.len() <= 4
+            && gap
+                .trim()
+                .trim_start_matches(['(', '[', '/', '=', '~', '≈'])
+                .trim()
+                .is_empty();
+        let same = qa.unit == qb.unit
+            && qa.value.abs() > 0.0
+            && ((qa.value - qb.value) / qa.value).abs() <= 0.015;
+        if joined && same {
+            drop[i] = true;
+        }
+    }
+    let mut i = 0;
+    measurements.retain(|_| {
+        i += 1;
+        !drop[i - 1]
+    });
 }
 
 /// A stable sort of records too large to move often: sorts (key, index) pairs, then moves

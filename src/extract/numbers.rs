@@ -278,6 +278,25 @@ pub fn time_before(before: &str) -> Option<TimeRef> {
     let word = LEAD.iter().find(|w| {
         b.ends_with(*w) && !b[..b.len() - w.len()].ends_with(|c: char| c.is_ascii_alphanumeric())
     })?;
+    // "echo this admission", "bloods during admission", "since admission": the stay, not
+    // the moment of admission.
+    let lead = b[..b.len() - word.len()].trim_end();
+    if [
+        "this",
+        "during",
+        "since",
+        "current",
+        "same",
+        "throughout",
+        "over",
+    ]
+    .iter()
+    .any(|w| {
+        lead.ends_with(w)
+            && !lead[..lead.len() - w.len()].ends_with(|c: char| c.is_ascii_alphanumeric())
+    }) {
+        return None;
+    }
     let w = word.trim_end_matches("'s").trim_end_matches('s');
     match w {
         "last" | "last review" | "most recent clinic" | "previous clinic" => {

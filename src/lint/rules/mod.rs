@@ -5,6 +5,7 @@ pub mod discharge_instructions_incomplete;
 pub mod diuretic_plan_missing;
 pub mod hf_acuity_unspecified;
 pub mod hf_code_suggestion;
+pub mod hf_type_ef_mismatch;
 pub mod hf_type_unspecified;
 pub mod lvef_missing;
 pub mod nyha_missing;
@@ -38,6 +39,7 @@ pub static ALL: &[Rule] = &[
     ckd_stage_unspecified::RULE,
     hf_code_suggestion::RULE,
     volume_status_contradiction::RULE,
+    hf_type_ef_mismatch::RULE,
     weight_gain_unaddressed::RULE,
     diuretic_plan_missing::RULE,
     potassium_raising_continued::RULE,
