@@ -436,3 +436,121 @@ Weight 96.3 kg (last clinic weight 89 kg in Sept).\n";
     assert_eq!(values, [89.0, 96.3]);
     assert_eq!(w.latest_kg, 96.3);
 }
+
+#[test]
+fn a_converted_temperature_is_shown_to_a_tenth_of_a_degree() {
+    // 97.2 °F = (97.2 - 32) x 5/9 = 36.222 °C (the Fahrenheit-Celsius relation, UCUM
+    // [degF]); a thermometer reads to 0.1 °C (common practice, no source).
+    let text = "Bed 8   MRN 0000808   18/11/2026 10:00\nT 97.2F\n";
+    let n = common::NoteBuilder::new("x.txt", text)
+        .m(
+            "T 97.2F",
+            0,
+            tidemark::model::MeasureConcept::Temperature,
+            (97.2 - 32.0) * 5.0 / 9.0,
+            None,
+            None,
+        )
+        .build();
+    let s = build_sheet(&[n], &Matcher::default());
+    let t = s.patients[0]
+        .observations
+        .iter()
+        .find(|o| o.label == "T")
+        .expect("temperature");
+    assert_eq!(t.value, "36.2");
+}
+
+#[test]
+fn a_haemolysed_potassium_carries_its_caveat() {
+    // Common practice, no source: haemolysis falsely raises serum potassium, so the sheet
+    // keeps the note's caveat beside the value.
+    for (line, want) in [
+        (
+            "K 5.2 (haemolysed sample - repeat sent)",
+            Some("haemolysed sample"),
+        ),
+        (
+            "K 6.4 ?haemolysed, repeat",
+            Some("possibly haemolysed sample"),
+        ),
+        ("K 5.2, repeat in the morning", None),
+    ] {
+        let text = format!("Bed 8   MRN 0000808   18/11/2026 10:00\n{line}\n");
+        let n = common::NoteBuilder::new("x.txt", &text)
+            .m(
+                &line[..5],
+                0,
+                tidemark::model::MeasureConcept::Potassium,
+                line[2..5].parse().expect("number"),
+                None,
+                None,
+            )
+            .build();
+        let s = build_sheet(&[n], &Matcher::default());
+        let k = s.patients[0]
+            .renal
+            .iter()
+            .find(|l| l.concept == "potassium")
+            .expect("potassium");
+        assert_eq!(k.caveat.as_deref(), want, "{line:?}");
+    }
+}
+
+/// The JSON sheet of one invented note, run through the binary.
+fn sheet_of(name: &str, text: &str) -> serde_json::Value {
+    let dir = std::env::temp_dir().join(format!("tidemark-handover-{}-{name}", std::process::id()));
+    std::fs::create_dir_all(&dir).expect("temp dir");
+    let path = dir.join(format!("{name}.txt"));
+    std::fs::write(&path, text).expect("write note");
+    let out = std::process::Command::new(env!("CARGO_BIN_EXE_tidemark"))
+        .args(["handover", "--format", "json"])
+        .arg(&path)
+        .output()
+        .expect("tidemark runs");
+    let _ = std::fs::remove_dir_all(&dir);
+    serde_json::from_slice(&out.stdout).expect("json")
+}
+
+fn plan_lines(v: &serde_json::Value) -> Vec<String> {
+    v["patients"][0]["plan"]["lines"]
+        .as_array()
+        .expect("plan lines")
+        .iter()
+        .map(|l| l["text"].as_str().expect("text").to_string())
+        .collect()
+}
+
+#[test]
+fn the_plan_stops_at_a_sign_off_and_is_the_latest_days() {
+    // Common practice, no source: a letter's closing is not a plan item, and in a record of
+    // several days the registrar wants today's plan.
+    let letter = "Heart Failure Clinic   MRN 0000909   03/12/2026\n\
+Dear Dr Example,\n\
+Plan:\n\
+- Increase bisoprolol to 3.75 mg od.\n\
+- Review in 8 weeks.\n\
+\n\
+Yours sincerely,\n\
+\n\
+Dr A Example\n\
+Consultant Cardiologist\n";
+    assert_eq!(
+        plan_lines(&sheet_of("letter", letter)),
+        ["Increase bisoprolol to 3.75 mg od.", "Review in 8 weeks."]
+    );
+    let days = "MRN 0000910\n\
+=== 06/11/2026 09:00 WR ===\n\
+Plan:\n\
+- IV furosemide 120 mg bd.\n\
+=== 07/11/2026 09:40 WR ===\n\
+Wt 88.1 kg. BP 110/70.\n\
+Plan:\n\
+- Reduce IV furosemide to 80 mg bd.\n\
+=== 08/11/2026 08:00 night ===\n\
+Settled overnight. Obs stable.\n";
+    assert_eq!(
+        plan_lines(&sheet_of("days", days)),
+        ["Reduce IV furosemide to 80 mg bd."]
+    );
+}

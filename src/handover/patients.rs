@@ -53,7 +53,7 @@ fn mrn_re() -> &'static Regex {
     static RE: OnceLock<Regex> = OnceLock::new();
     RE.get_or_init(|| {
         Regex::new(
-            r"(?i)(?-u:\b)(?:MRN|hospital\s+(?:no|number)|hosp\s+no|unit\s+no|NHS\s+(?:no|number)|patient\s+id|H/N)\.?\s*[:#]?\s*([A-Z]{0,3}[0-9]{3,}(?:[ -][0-9]{3,})*)(?-u:\b)",
+            r"(?i)(?-u:\b)(?:MRN|URN?|UR\s+no|hospital\s+(?:no|number|id)|hosp\s+no|unit\s+(?:no|number)|(?:medical\s+)?record\s+(?:no|number)|NHS\s+(?:no|number)|NHI|patient\s+(?:id|ref|no|number)|pt\s+(?:id|ref|no)|H/N)\.?\s*[:#]?\s*([A-Z]{0,3}-?[0-9]{2,}(?:[ -][0-9]{2,})*)(?-u:\b)",
         )
         .expect("valid regex")
     })
@@ -103,7 +103,11 @@ impl Matcher {
                 }
             }
         }
-        if let Some(c) = mrn_re().captures(head) {
+        // At least four digits: `Ur 8.8` (urea) and `UR 12` are no record numbers.
+        if let Some(c) = mrn_re()
+            .captures_iter(head)
+            .find(|c| c[1].bytes().filter(u8::is_ascii_digit).count() >= 4)
+        {
             let whole = c.get(0).expect("match");
             let key: String = c[1].chars().filter(|c| c.is_alphanumeric()).collect();
             pieces.push((
@@ -313,6 +317,19 @@ mod tests {
         assert_eq!(p.keys, vec!["bed:/12"]);
         let p = id("Hospital no: 123 456 7890\n").expect("id");
         assert_eq!(p.keys, vec!["mrn:1234567890"]);
+        // Common practice, no source: UK unit numbers, the Australian unit record number
+        // (UR, URN), and patient ID or reference labels with a letter prefix.
+        for (head, key) in [
+            ("Unit no: 88-2215   19/11/2026\n", "mrn:882215"),
+            ("Ward round   UR 8812034\n", "mrn:8812034"),
+            ("URN: 4455120\n", "mrn:4455120"),
+            ("Patient ID: RX-55210 (invented)\n", "mrn:rx55210"),
+            ("Pt ref: PC-0173   22/11/2026\n", "mrn:pc0173"),
+        ] {
+            assert_eq!(id(head).expect(head).keys, vec![key], "{head:?}");
+        }
+        // A urea is no record number.
+        assert!(id("U+E: Na 137, K 4.7, Ur 8.8, Cr 104\n").is_none());
         assert!(id("Seen on ward round. BP 120/80.\n").is_none());
         // Only the first lines count.
         let deep = format!("{}MRN 0000999\n", "line\n".repeat(20));

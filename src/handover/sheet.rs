@@ -176,6 +176,10 @@ pub struct LabLine {
     /// How a computed value was computed.
     #[serde(skip_serializing_if = "Option::is_none")]
     pub basis: Option<String>,
+    /// What the note says about the latest sample, when it casts doubt on the value
+    /// (`haemolysed sample`).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub caveat: Option<String>,
     pub sources: Vec<Src>,
 }
 
@@ -666,11 +670,20 @@ fn observations(notes: &[NoteRef]) -> Vec<Observation> {
         let es = current(notes, concept);
         let Some(latest) = es.last() else { continue };
         let prev = es.iter().rev().find(|e| e.note < latest.note);
+        // A temperature converted from °F (99.2 °F = 37.333 °C) is shown to the 0.1 °C a
+        // thermometer reads (common practice, no source); the others are whole numbers.
+        let show = |v: f64| {
+            if concept == MeasureConcept::Temperature {
+                crate::picture::fmt_num(v, 1)
+            } else {
+                fmt_num(v)
+            }
+        };
         out.push(Observation {
             label,
-            value: fmt_num(latest.value),
+            value: show(latest.value),
             unit,
-            previous: prev.map(|p| fmt_num(p.value)),
+            previous: prev.map(|p| show(p.value)),
             direction: prev.map(|p| Direction::of(p.value, latest.value)),
             sources: vec![src(latest)],
         });
@@ -882,12 +895,17 @@ pub fn egfr_ckd_epi_2021(creatinine_umol_l: f64, age: f64, female: bool) -> Opti
 
 fn renal(notes: &[NoteRef]) -> Vec<LabLine> {
     let mut out = Vec::new();
-    let when = |e: &Entry| -> String {
+    // When the previous value was taken: its time word, its own date, "earlier" for an
+    // undated value of the latest value's own note (the note's date is the latest's), else
+    // its note's date and time.
+    let when = |e: &Entry, latest: &Entry| -> String {
         match e.m.time_ref {
             Some(TimeRef::Admission) => "adm".into(),
             Some(TimeRef::Baseline) => "baseline".into(),
             Some(TimeRef::Yesterday) => "yest".into(),
             Some(TimeRef::Previous) => "prev".into(),
+            _ if e.m.date.is_some() => short_date(e.m.date.as_deref().unwrap_or_default()),
+            _ if e.note == latest.note => "earlier".into(),
             _ => {
                 let t = notes[e.note].time;
                 match (&t.date, &t.time) {
@@ -920,9 +938,10 @@ fn renal(notes: &[NoteRef]) -> Vec<LabLine> {
             unit,
             latest: latest.value,
             previous: prev.map(|p| p.value),
-            previous_when: prev.as_ref().map(when),
+            previous_when: prev.as_ref().map(|p| when(p, latest)),
             change: prev.map(|p| latest.value - p.value),
             basis: None,
+            caveat: sample_caveat(notes[latest.note].text, latest.m.span.end),
             sources,
         });
     }
@@ -946,6 +965,7 @@ fn renal(notes: &[NoteRef]) -> Vec<LabLine> {
                             "computed by CKD-EPI 2021 from the latest creatinine, age and sex; assumes steady state"
                                 .into(),
                         ),
+                        caveat: None,
                         sources,
                     },
                 );
@@ -953,6 +973,30 @@ fn renal(notes: &[NoteRef]) -> Vec<LabLine> {
         }
     }
     out
+}
+
+/// `K 5.2 (haemolysed sample - repeat sent)`, `K 6.4 ?haemolysed`, `K 5.9 - lysed`: a
+/// note after a result that the sample may have given a false value. Haemolysis releases
+/// red-cell potassium and falsely raises serum potassium (common practice, no source).
+fn sample_caveat(text: &str, end: usize) -> Option<String> {
+    static RE: std::sync::OnceLock<regex::Regex> = std::sync::OnceLock::new();
+    let re = RE.get_or_init(|| {
+        regex::Regex::new(r"(?i)^[^.;\n]{0,24}?(\?\s*)?(haemoly[sz]ed|hemoly[zs]ed|haemolysis|hemolysis|lysed|clotted sample)")
+            .expect("valid regex")
+    });
+    let mut lim = (end + 48).min(text.len());
+    while !text.is_char_boundary(lim) {
+        lim -= 1;
+    }
+    let after = text.get(end..lim)?;
+    let c = re.captures(after)?;
+    let doubt = if c.get(1).is_some() { "possibly " } else { "" };
+    let word = c[2].to_ascii_lowercase();
+    Some(if word.contains("clotted") {
+        format!("{doubt}clotted sample")
+    } else {
+        format!("{doubt}haemolysed sample")
+    })
 }
 
 fn age_sex_values(notes: &[NoteRef]) -> (Option<f64>, Option<bool>, Vec<Src>) {
@@ -1180,15 +1224,40 @@ fn plan(notes: &[NoteRef]) -> Option<Plan> {
     })?;
     let index = LineIndex::new(n.text);
     let mut lines = Vec::new();
-    for s in n
+    // In a record of several days (`=== 07/11/2026 ===` headers), the plan is the latest
+    // day's: only the plan sections of the last day that has one, each cut at the next
+    // day's header.
+    let day_starts: Vec<usize> = n
+        .analysis
+        .extraction
+        .episodes
+        .iter()
+        .map(|e| e.span.start)
+        .collect();
+    let day_of = |at: usize| day_starts.partition_point(|&d| d <= at);
+    let plans: Vec<_> = n
         .analysis
         .extraction
         .sections
         .iter()
         .filter(|s| s.kind == SectionKind::Plan)
+        .collect();
+    let last_day = plans
+        .iter()
+        .map(|s| day_of(s.span.start))
+        .max()
+        .unwrap_or(0);
+    'sections: for s in plans
+        .into_iter()
+        .filter(|s| day_of(s.span.start) == last_day)
     {
         let start = s.header.end.min(n.text.len());
-        let end = s.span.end.min(n.text.len()).max(start);
+        let next_day = day_starts
+            .iter()
+            .copied()
+            .find(|&d| d > s.span.start)
+            .unwrap_or(usize::MAX);
+        let end = s.span.end.min(next_day).min(n.text.len()).max(start);
         let (Some(body), true) = (n.text.get(start..end), n.text.is_char_boundary(start)) else {
             continue;
         };
@@ -1198,6 +1267,10 @@ fn plan(notes: &[NoteRef]) -> Option<Plan> {
             let trimmed = line.trim_start_matches([' ', '\t', '-', '*', '•']);
             let lead = line.len() - trimmed.len();
             let text = trimmed.trim_end();
+            // A letter's sign-off ends its plan (`Yours sincerely,`, `Kind regards`).
+            if is_sign_off(text) {
+                break 'sections;
+            }
             if !text.is_empty() {
                 let a = offset + lead;
                 lines.push(PlanLine {
@@ -1212,6 +1285,34 @@ fn plan(notes: &[NoteRef]) -> Option<Plan> {
         }
     }
     Some(Plan { note: i, lines })
+}
+
+/// The closing of a letter or entry, after which no plan item follows (common practice of
+/// UK, US and Australian letters, no source).
+fn is_sign_off(line: &str) -> bool {
+    const CLOSINGS: &[&str] = &[
+        "yours sincerely",
+        "yours faithfully",
+        "yours truly",
+        "kind regards",
+        "best regards",
+        "warm regards",
+        "with best wishes",
+        "best wishes",
+        "many thanks",
+        "regards",
+        "sincerely",
+        "dictated but not",
+        "electronically signed",
+        "signed:",
+        "cc:",
+        "cc ",
+    ];
+    let l = line.to_ascii_lowercase();
+    let l = l.trim_end_matches([',', '.', ' ']);
+    CLOSINGS
+        .iter()
+        .any(|c| l == c.trim_end() || (l.starts_with(c) && l.len() <= c.len() + 40))
 }
 
 fn to_check(notes: &[NoteRef]) -> Vec<Check> {

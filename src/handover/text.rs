@@ -107,6 +107,9 @@ fn lab_text(l: &LabLine) -> String {
     if l.basis.is_some() {
         s.push_str(" (computed, CKD-EPI 2021)");
     }
+    if let Some(c) = &l.caveat {
+        s.push_str(&format!(" [{c}]"));
+    }
     s
 }
 
