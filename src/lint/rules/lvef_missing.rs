@@ -142,6 +142,32 @@ mod tests {
     }
 
     #[test]
+    fn an_echo_planned_or_not_available_satisfies_the_rule() {
+        // Joint Commission HF-2 data element (domain reference 09): LV function assessed,
+        // planned, or a reason for not assessing it. Invented sentences in several wordings.
+        for plan in [
+            "Echo in AM.",
+            "TTE this week.",
+            "For echo tomorrow.",
+            "Echo requested.",
+            "No prior echo available.",
+            "No echo yet - GP to arrange.",
+            "Awaiting echocardiogram.",
+        ] {
+            let text = format!("Discharge summary\nDx: heart failure.\n{plan}\n");
+            let n = Note::new(&text).stmt(StatementKind::HeartFailure, "", "heart failure");
+            assert!(n.check(&RULE).is_empty(), "{plan:?}");
+        }
+        // An echo of the past with nothing planned leaves the LVEF missing.
+        let n = Note::new("Discharge summary\nDx: heart failure.\nEcho showed MR.\n").stmt(
+            StatementKind::HeartFailure,
+            "",
+            "heart failure",
+        );
+        assert_eq!(n.check(&RULE).len(), 1);
+    }
+
+    #[test]
     fn type_without_number_is_info() {
         let n = Note::new(DS)
             .stmt(StatementKind::HeartFailure, "", "heart failure")

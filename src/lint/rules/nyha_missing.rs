@@ -80,6 +80,19 @@ mod tests {
     }
 
     #[test]
+    fn a_referral_letter_asks_for_no_class() {
+        // A referral asks the specialist to assess; the class is theirs to give (common
+        // practice of referral letters, no source).
+        for text in [
+            "Referral to Heart Failure Clinic\nDear Dr Example,\nQuery heart failure.\n",
+            "Dear Dr Example,\nI would be grateful if you could see this man with heart failure.\n",
+        ] {
+            let n = Note::new(text).stmt(StatementKind::HeartFailure, "", "heart failure");
+            assert!(n.check(&RULE).is_empty(), "{text:?}");
+        }
+    }
+
+    #[test]
     fn silent_with_nyha_or_outside_letters() {
         let text = format!("{LETTER}NYHA II.\n");
         let n = Note::new(&text)
