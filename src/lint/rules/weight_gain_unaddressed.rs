@@ -19,7 +19,9 @@ const DOC: &str = "\
 ## What
 Fires when two dated weights in the note show a rise greater than the threshold (default more
 than 2.0 kg) within the window (default 3 days), and the note documents no change to a loop or
-thiazide diuretic or an MRA (started, increased, switched, reduced, held or stopped). Exactly
+thiazide diuretic or an MRA (started, increased, switched, reduced, held or stopped). A
+change written with a date before the day of the latest weight of the rise (`switched from IV
+26/11` against a rise up to 28/11) was made before the gain and does not count. Exactly
 2.0 kg does not fire. Weights without a date, or whose unit is unknown, are not used; a gap in
 the series is not interpolated. Threshold and window are set in `tidemark.toml`
 (`[lint.thresholds] weight-gain-kg`, `weight-gain-days`), for example for a site policy of
@@ -46,13 +48,41 @@ information website, page \"Weight gain\". A litre of fluid weighs about a kilog
 practice.
 ";
 
-fn addressed(cx: &Ctx<'_>) -> bool {
+/// Whether a diuretic change answers a gain that ended on day `to_day`: a change written
+/// with an earlier date (`PO furosemide 40 mg om (switched from IV 26/11)` against a gain
+/// up to 28/11) was made before the gain and does not address it.
+fn addressed(cx: &Ctx<'_>, to_day: i64) -> bool {
     cx.ex.medications.iter().any(|m| {
         matches!(
             m.class,
             DrugClass::LoopDiuretic | DrugClass::ThiazideDiuretic | DrugClass::Mra
         ) && m.change.is_some_and(|c| c != MedChange::Continued)
+            && change_day(cx, m).is_none_or(|d| d >= to_day)
     })
+}
+
+/// The date written with a medication change, on its line: in the mention or just after
+/// it (`(switched from IV 26/11)`, `increased 27/11`).
+fn change_day(cx: &Ctx<'_>, m: &crate::model::Medication) -> Option<i64> {
+    use crate::text::dates::{find_dates, resolve_order};
+    let start = m.span.start.min(cx.text.len());
+    let line_end = cx.text[start..]
+        .find('\n')
+        .map_or(cx.text.len(), |i| start + i);
+    let mut end = line_end.min(m.span.end.max(start) + 48);
+    while !cx.text.is_char_boundary(end) {
+        end -= 1;
+    }
+    let segment = cx.text.get(start..end)?;
+    let order = resolve_order(cx.text, crate::config::DateOrder::Auto, false);
+    let year = cx
+        .ex
+        .note_date
+        .as_deref()
+        .and_then(|d| d.get(..4))
+        .and_then(|y| y.parse().ok());
+    let found = find_dates(segment, order, year);
+    iso_day(&found.first()?.iso)
 }
 
 fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
@@ -83,7 +113,11 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
     let Some((rise, from, to, days)) = best else {
         return;
     };
-    if addressed(cx) {
+    let to_day = dated
+        .iter()
+        .find(|(_, _, m)| std::ptr::eq(*m, to))
+        .map_or(i64::MAX, |(d, ..)| *d);
+    if addressed(cx, to_day) {
         return;
     }
     out.push(RULE.diag(
@@ -183,5 +217,30 @@ mod tests {
         )
         .unwrap();
         assert_eq!(n.check_with(&RULE, &cfg).len(), 1);
+    }
+
+    #[test]
+    fn a_change_dated_before_the_gain_does_not_address_it() {
+        // Common practice, no source: a switch made before the weight rose is no answer
+        // to the rise; one made on the day of the latest weight, or after, is.
+        for (line, fires) in [
+            ("PO furosemide 40 mg om (switched from IV 01/03/2026)", true),
+            ("furosemide increased to 80 mg om on 04/03/2026", false),
+            ("furosemide increased to 80 mg om", false),
+        ] {
+            let text = format!("Wt 80.0 kg\nWt 82.1 kg\n{line}\n");
+            let n = weights(
+                &text,
+                (80.0, "2026-03-01", "Wt 80.0 kg"),
+                (82.1, "2026-03-04", "Wt 82.1 kg"),
+            )
+            .med(
+                "furosemide",
+                DrugClass::LoopDiuretic,
+                Some(MedChange::Increased),
+                line,
+            );
+            assert_eq!(n.check(&RULE).len(), usize::from(fires), "{line:?}");
+        }
     }
 }
