@@ -554,3 +554,40 @@ Settled overnight. Obs stable.\n";
         ["Reduce IV furosemide to 80 mg bd."]
     );
 }
+
+#[test]
+fn a_baseline_weight_is_labelled_baseline_and_comes_before_admission() {
+    // Common practice, no source: a usual (baseline) weight is not the admission weight.
+    let text = "Bed 2   MRN 0000202   01/12/2026 10:00\n\
+Weight 146.2 lbs (baseline 145). Admission weight 68 kg.\n";
+    let n = common::NoteBuilder::new("x.txt", text)
+        .m(
+            "Weight 146.2 lbs",
+            0,
+            tidemark::model::MeasureConcept::Weight,
+            66.3,
+            None,
+            Some("2026-12-01"),
+        )
+        .m(
+            "baseline 145",
+            0,
+            tidemark::model::MeasureConcept::Weight,
+            65.8,
+            Some(tidemark::model::TimeRef::Baseline),
+            None,
+        )
+        .m(
+            "Admission weight 68 kg",
+            0,
+            tidemark::model::MeasureConcept::Weight,
+            68.0,
+            Some(tidemark::model::TimeRef::Admission),
+            None,
+        )
+        .build();
+    let s = build_sheet(&[n], &Matcher::default());
+    let w = s.patients[0].weight.as_ref().expect("weight series");
+    let labels: Vec<&str> = w.points.iter().map(|p| p.label.as_str()).collect();
+    assert_eq!(labels, ["baseline", "adm", "01/12"]);
+}

@@ -763,7 +763,8 @@ fn daily_series(notes: &[NoteRef], concept: MeasureConcept) -> Vec<SeriesPoint> 
         .collect()
 }
 
-/// [`daily_series`] with each point's sort key: a date, `""` for admission, `!NNNN` for an
+/// [`daily_series`] with each point's sort key: a date, `""` for a baseline value, `" "`
+/// for admission, `!NNNN` for an
 /// undated earlier value of note NNNN, or for another undated value `~NNNN-R` (note
 /// number, then 2 yesterday, 3 the note's day).
 fn daily_points(notes: &[NoteRef], concept: MeasureConcept) -> Vec<(String, SeriesPoint)> {
@@ -778,9 +779,9 @@ fn daily_points(notes: &[NoteRef], concept: MeasureConcept) -> Vec<(String, Seri
         };
         let (key, label) = match (&date, e.m.time_ref) {
             (Some(d), _) => (d.clone(), short_date(d)),
-            (None, Some(TimeRef::Admission) | Some(TimeRef::Baseline)) => {
-                (String::new(), "adm".to_string())
-            }
+            // A usual (baseline) weight before the admission weight, each with its label.
+            (None, Some(TimeRef::Baseline)) => (String::new(), "baseline".to_string()),
+            (None, Some(TimeRef::Admission)) => (" ".to_string(), "adm".to_string()),
             // An undated earlier value (`last clinic weight 89 kg`) precedes the dated
             // values of the stay, after the admission values.
             (None, Some(TimeRef::Previous)) => (format!("!{:04}", e.note), format!("{note}prev")),
