@@ -548,6 +548,26 @@ const FINDINGS: &[Find] = &[
 ];
 
 #[test]
+fn a_plus_glued_to_a_sign_marks_it_positive_not_graded() {
+    // Common practice of US notes, no source: "+leg swelling" is "leg swelling: yes"; a
+    // grade is written "2+", "++ oedema" or "oedema ++" (domain 03 §3.3).
+    let e = ex("presents w/ 2d of SOB. +leg swelling. Denies chest pain.");
+    let f = e
+        .findings
+        .iter()
+        .find(|f| f.concept == F::PeripheralEdema)
+        .expect("oedema read");
+    assert_eq!((f.assertion, f.detail.grade), (Present, None));
+    let e = ex("++ oedema to knees");
+    let f = e
+        .findings
+        .iter()
+        .find(|f| f.concept == F::PeripheralEdema)
+        .expect("oedema read");
+    assert_eq!(f.detail.grade, Some(2.0));
+}
+
+#[test]
 fn swelling_with_a_local_cause_is_not_congestion() {
     // Domain 03 §3.3: one-sided swelling suggests a local cause rather than heart failure.
     let local = [
@@ -990,4 +1010,29 @@ fn heart_failure_of_someone_else_is_not_the_patients() {
         rules.contains(&"hf-type-unspecified".to_string()),
         "{rules:?}"
     );
+}
+
+#[test]
+fn the_reason_a_drug_was_stopped_is_no_finding_of_today() {
+    // Common practice, no source: the reason for a drug change is a past event.
+    for text in [
+        "Bisoprolol - stopped 18/11 (bradycardia, hypotension)",
+        "Ramipril held due to hypotension",
+        "Spironolactone discontinued (hyperkalaemia and confusion)",
+    ] {
+        let e = ex(text);
+        let today: Vec<_> = e
+            .findings
+            .iter()
+            .filter(|f| f.temporality == Current && f.assertion == Present)
+            .map(|f| f.concept)
+            .collect();
+        assert!(today.is_empty(), "{text:?}: {today:?}");
+    }
+    // A finding of today after the drug line stays current.
+    let e = ex("Bisoprolol stopped. Hypotensive today, BP 84/50.");
+    assert!(e
+        .findings
+        .iter()
+        .any(|f| f.concept == F::Hypotension && f.temporality == Current));
 }

@@ -65,6 +65,23 @@ fn local_swelling(doc: &Doc, start: usize, end: usize) -> bool {
     (local.is_match(before) || local.is_match(after)) && !both(before) && !both(after)
 }
 
+/// Whether a term stands in the bracket of a drug change's reason: `stopped 18/11
+/// (bradycardia, hypotension)`, `held (hypotension)`, `reduced due to hypotension`. Common
+/// practice, no source.
+fn drug_change_reason(doc: &Doc, start: usize) -> bool {
+    static REASON: OnceLock<Regex> = OnceLock::new();
+    let reason = re(
+        &REASON,
+        r"(?i)(?-u:\b)(?:stopped|held|withheld|omitted|discontinued|d/c'?d|reduced|decreased|switched|changed|not\s+restarted|intolerant|intolerance)(?-u:\b)[^()\n.;]{0,24}(?:\([^()\n]*|(?-u:\b)(?:due\s+to|because\s+of|owing\s+to|for)\s+[^()\n.;]*)$",
+    );
+    let line = doc.line_at(start);
+    let mut from = start.saturating_sub(64).max(line.start);
+    while !doc.text.is_char_boundary(from) {
+        from += 1;
+    }
+    reason.is_match(&doc.text[from..start])
+}
+
 fn edema_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
     static GRADE: OnceLock<Regex> = OnceLock::new();
     static LEVEL: OnceLock<Regex> = OnceLock::new();
@@ -100,7 +117,10 @@ fn edema_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
             "moderate" => 2.0,
             _ => 4.0,
         });
-    for s in [before, after] {
+    // `+leg swelling`: a plus glued to the term marks it positive, not graded (common
+    // practice of US notes, no source); `++ oedema`, with a space, is a grade.
+    let before_graded = before.trim_end_matches('+');
+    for s in [before_graded, after] {
         if d.grade.is_none() {
             if let Some(c) = grade.captures(s) {
                 d.grade = if let Some(n) = c.get(1).or(c.get(4)) {
@@ -529,7 +549,13 @@ pub fn findings(doc: &Doc, out: &mut Output) {
                 assertion
             },
             experiencer: ctx.experiencer,
-            temporality: ctx.temporality,
+            // `Bisoprolol - stopped 18/11 (bradycardia, hypotension)`: the reason a drug
+            // was stopped or changed is an event of the past, not today's examination.
+            temporality: if drug_change_reason(doc, start) {
+                crate::model::Temporality::Historical
+            } else {
+                ctx.temporality
+            },
             text: doc.text[start..end].to_string(),
             span: doc.index.span(start, end),
             detail,
