@@ -242,3 +242,51 @@ fn a_value_restated_in_another_unit_is_one_reading() {
         2
     );
 }
+
+#[test]
+fn an_order_word_does_not_reach_into_the_next_sentence() {
+    // ConText (Harkema et al. 2009): a cue's scope ends at the sentence boundary. An order
+    // to recheck, or a threshold, in one sentence says nothing of the values written in the
+    // sentences after it; common practice, no source, for the shorthand itself.
+    let rows: &[(&str, &[MeasureConcept])] = &[
+        (
+            "Wt 89.9 kg (scale?) - recheck. FB -0.2 L. Cr 141, K 5.7.",
+            &[M::Weight, M::FluidBalance, M::Creatinine, M::Potassium],
+        ),
+        (
+            "Weight 102 kg, recheck. K 5.9, Na 131.",
+            &[M::Weight, M::Potassium, M::Sodium],
+        ),
+        (
+            "Hold furosemide if SBP <90. K 4.1, Cr 160.",
+            &[M::Potassium, M::Creatinine],
+        ),
+        (
+            "Recheck U&E in am; Cr 188, K 3.2",
+            &[M::Creatinine, M::Potassium],
+        ),
+        (
+            "Aim weight 80kg. HR 96, BP 104/62.",
+            &[M::HeartRate, M::SystolicBp],
+        ),
+    ];
+    let mut failures = Vec::new();
+    for &(text, want) in rows {
+        let e = ex(text);
+        for c in want {
+            if !e.measurements.iter().any(|m| m.concept == *c) {
+                failures.push(format!("{text:?}: {c:?} lost"));
+            }
+        }
+    }
+    assert!(failures.is_empty(), "{}", failures.join("\n"));
+    // Inside its own sentence the order still makes a threshold (`Recheck K 5.2` is not a
+    // reading; `if K > 6.0` is a threshold).
+    for text in ["Recheck K 5.2 tomorrow.", "Stop spironolactone if K > 6.0."] {
+        let e = ex(text);
+        assert!(
+            !e.measurements.iter().any(|m| m.concept == M::Potassium),
+            "{text:?}: threshold read as a value"
+        );
+    }
+}

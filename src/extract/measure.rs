@@ -460,9 +460,12 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
         "recheck",
         "re-check",
     ];
+    // Within the label's own sentence: `Wt 89.9 kg - recheck. K 5.7` orders a recheck of
+    // the weight, and `Hold if SBP <90. K 4.1` makes no threshold of the K (ConText,
+    // Harkema et al. 2009: a cue's scope ends at the sentence boundary).
+    let window = own_sentence(&doc.text[from..start]);
     static AC: std::sync::OnceLock<aho_corasick::AhoCorasick> = std::sync::OnceLock::new();
     // Whole words only: "in keeping with NYHA II" holds no "keep", "claim" no "aim".
-    let window = &doc.text[from..start];
     let bytes = window.as_bytes();
     crate::text::phrase_automaton(&AC, WORDS.iter().copied())
         .find_overlapping_iter(window)
@@ -473,6 +476,15 @@ fn is_threshold(doc: &Doc, start: usize) -> bool {
                 || !bytes[m.end()].is_ascii_alphanumeric();
             before_ok && after_ok
         })
+}
+
+/// The end of `window` that lies in the same sentence as what follows it: after the last
+/// full stop, question mark, exclamation mark or semicolon followed by a space.
+fn own_sentence(window: &str) -> &str {
+    window
+        .rmatch_indices(['.', ';', '?', '!'])
+        .find(|&(i, _)| window[i + 1..].starts_with([' ', '\t']))
+        .map_or(window, |(i, _)| &window[i + 1..])
 }
 
 /// An order to bring a value to a level: `titrating to SBP <140`, `replete K >4, Mg >2`,
@@ -519,11 +531,7 @@ fn is_goal_order(doc: &Doc, start: usize, end: usize) -> bool {
         "keep",
     ];
     // Within the label's own sentence.
-    let window = &doc.text[from..start];
-    let window = window
-        .rfind(". ")
-        .or_else(|| window.rfind("; "))
-        .map_or(window, |i| &window[i + 2..]);
+    let window = own_sentence(&doc.text[from..start]);
     static AC: std::sync::OnceLock<aho_corasick::AhoCorasick> = std::sync::OnceLock::new();
     crate::text::phrase_automaton(&AC, VERBS.iter().copied()).is_match(window)
 }
