@@ -290,3 +290,25 @@ fn an_order_word_does_not_reach_into_the_next_sentence() {
         );
     }
 }
+
+#[test]
+fn a_time_phrase_opening_a_list_dates_every_value() {
+    // Common practice, no source: "On arrival BP 168/94, HR 88, SpO2 89%" gives the
+    // arrival values; today's values written later are not dated by it.
+    let e = ex("On arrival BP 168/94, HR 88, SpO2 89% on RA, bilateral crackles. Today HR 72.");
+    let time = |c: MeasureConcept, v: f64| {
+        e.measurements
+            .iter()
+            .find(|m| m.concept == c && (m.value - v).abs() < 1e-9)
+            .map(|m| m.time_ref)
+    };
+    assert_eq!(time(M::HeartRate, 88.0), Some(Some(TimeRef::Admission)));
+    assert_eq!(time(M::Spo2, 89.0), Some(Some(TimeRef::Admission)));
+    assert_ne!(time(M::HeartRate, 72.0), Some(Some(TimeRef::Admission)));
+    let e = ex("At discharge: HR 70, BP 118/70.");
+    assert!(e
+        .measurements
+        .iter()
+        .filter(|m| m.concept == M::HeartRate)
+        .all(|m| m.time_ref == Some(TimeRef::Discharge)));
+}

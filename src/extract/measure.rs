@@ -663,7 +663,56 @@ fn written_time(doc: &Doc, r: &Reading, start: usize) -> (Option<TimeRef>, Optio
             time_ref = time_before(before);
         }
     }
+    if time_ref.is_none() && date.is_none() {
+        time_ref = list_time(doc, start);
+    }
     (time_ref, date)
+}
+
+/// `On arrival BP 168/94, HR 88, SpO2 89% on RA`: a time phrase that opens a sentence
+/// listing values dates every value of the list, not only the first. The list runs on
+/// through commas; a full stop, semicolon or a later time word ends it. Common practice,
+/// no source.
+fn list_time(doc: &Doc, start: usize) -> Option<TimeRef> {
+    static LEAD: std::sync::OnceLock<regex::Regex> = std::sync::OnceLock::new();
+    let lead = super::numbers::cached(
+        &LEAD,
+        r"(?i)^\s*(?:[-*•]\s*)?(on\s+arrival|on\s+admission|at\s+admission|at\s+presentation|on\s+presentation|admission\s+obs|admission\s+vitals|pre-?admission|at\s+baseline|at\s+discharge|on\s+discharge|discharge\s+obs|discharge\s+vitals)\b[:,]?\s",
+    );
+    let line = doc.line_at(start);
+    let mut from = start.saturating_sub(120).max(line.start);
+    while !doc.text.is_char_boundary(from) {
+        from += 1;
+    }
+    let before = doc.text.get(from..start)?;
+    // The label's own sentence.
+    let sentence = before
+        .rmatch_indices(['.', ';'])
+        .find(|&(i, _)| before[i + 1..].starts_with([' ', '\t']))
+        .map_or(before, |(i, _)| &before[i + 1..]);
+    // The sentence must start here (not be cut by the window) and hold no other time word.
+    if sentence.len() == before.len() && from != line.start {
+        return None;
+    }
+    let c = lead.captures(sentence)?;
+    let rest = &sentence[c.get(0)?.end()..];
+    const OTHER: &[&str] = &["now", "today", "currently", "this morning", "since"];
+    let lower = rest.to_ascii_lowercase();
+    if OTHER.iter().any(|w| {
+        lower
+            .match_indices(w)
+            .any(|(i, _)| !lower[..i].ends_with(|ch: char| ch.is_ascii_alphanumeric()))
+    }) {
+        return None;
+    }
+    let phrase = c[1].to_ascii_lowercase();
+    Some(if phrase.contains("discharge") {
+        TimeRef::Discharge
+    } else if phrase.contains("baseline") {
+        TimeRef::Baseline
+    } else {
+        TimeRef::Admission
+    })
 }
 
 /// Give each reading without a unit the last unit written before it in the order given
