@@ -602,6 +602,8 @@ fn frequency_of(word: &str) -> Option<(&'static str, Option<f64>)> {
         "stat" => ("stat", None),
         "once" => ("once", None),
         "prn" => ("prn", None),
+        // "x1": one dose, US usage ("80 mg IV x1"; common practice, no source).
+        "x1" | "×1" => ("once", None),
         "weekly" => ("weekly", Some(1.0 / 7.0)),
         "qod" => ("alternate days", Some(0.5)),
         "mon/wed/fri" | "m/w/f" => ("mon/wed/fri", Some(3.0 / 7.0)),
@@ -646,6 +648,34 @@ const FREQUENCY_PHRASES: &[(&str, &str, Option<f64>)] = &[
     ("one off", "once", None),
 ];
 
+/// The word that says a dose runs over 24 hours ("40 mg SC via syringe driver over 24h",
+/// "60 mg/24h", "60 mg per 24 hours"): a continuous subcutaneous or intravenous infusion whose
+/// daily dose is the amount written (domain reference 09-discharge-gdmt.md 9.3, CSCI).
+fn over_a_day(seg: &[Word]) -> Option<usize> {
+    let day = |w: &str| {
+        matches!(
+            w.trim_end_matches(['.', ',']),
+            "24h" | "24hr" | "24hrs" | "24hours" | "24-hours" | "24-hour"
+        )
+    };
+    seg.iter().enumerate().find_map(|(i, w)| {
+        let t = w.text.as_str();
+        if t.contains("/24") && !t.starts_with("q") {
+            return Some(i);
+        }
+        if !matches!(t, "over" | "per" | "/" | "every") {
+            return None;
+        }
+        let next = seg.get(i + 1)?.text.as_str();
+        if day(next) {
+            return Some(i + 1);
+        }
+        let unit = seg.get(i + 2).map(|w| w.text.trim_end_matches(['.', ',']));
+        (next == "24" && matches!(unit, Some("h" | "hr" | "hrs" | "hours" | "hour")))
+            .then_some(i + 2)
+    })
+}
+
 /// Dose-time words of a split dose ("80 mg mane + 40 mg midday").
 fn time_word(word: &str) -> Option<&'static str> {
     Some(match word.trim_end_matches('.') {
@@ -687,6 +717,8 @@ fn unit_of(word: &str) -> Option<&'static str> {
         "tab" | "tabs" | "tablet" | "tablets" => "{tablet}",
         "cap" | "caps" | "capsule" | "capsules" => "{capsule}",
         "mg/h" | "mg/hr" | "mg/hour" | "mg/hrs" => "mg/h",
+        // An amount over a day by syringe driver ("60 mg/24h"); see [`over_a_day`].
+        "mg/24h" | "mg/24hr" | "mg/24hrs" | "mg/24hours" | "mg/24" => "mg",
         "mcg/h" | "ug/h" | "micrograms/h" | "microgram/h" => "ug/h",
         _ => return None,
     })
@@ -1219,6 +1251,19 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
             p.unit = d0.unit;
             apply_frequency(&mut p, freq.as_ref());
         }
+        if p.frequency.is_none() && p.unit == Some("mg") {
+            if let Some(wi) = over_a_day(seg) {
+                let d = p.dose.unwrap_or(0.0);
+                p.frequency = Some("over 24 h".into());
+                p.per_day = Some(1.0);
+                p.daily_dose = p.dose;
+                p.note = Some(format!(
+                    "{} mg over 24 h by continuous infusion",
+                    fmt_num(d)
+                ));
+                mark(&mut p, &seg[wi]);
+            }
+        }
         if infusion && p.frequency.is_none() {
             p.frequency = Some("continuous".into());
         }
@@ -1596,6 +1641,56 @@ mod tests {
     }
 
     #[test]
+    fn shortened_generic_names() {
+        // Typed short forms of generic names (common practice, no source; "IV furo 80 bd" is
+        // a handover form in the domain reference 03-note-language.md 3.10). Brands never.
+        for (text, drug) in [
+            ("IV furo 80 bd", "furosemide"),
+            ("furo 40 IV od", "furosemide"),
+            ("Furo 40mg PO om", "furosemide"),
+            ("spiro 25 od", "spironolactone"),
+            ("HCTZ 25 mg daily", "hydrochlorothiazide"),
+            ("sac/val 24/26 mg bd", "sacubitril/valsartan"),
+            ("TMP-SMX DS 1 tab BID", "co-trimoxazole"),
+            ("trimethoprim 200mg BD", "trimethoprim"),
+        ] {
+            let m = one(text);
+            assert_eq!(m.drug, drug, "{text}");
+            assert!(m.dose.is_some(), "{text}");
+        }
+        let m = one("IV furo 80 bd");
+        assert_eq!(
+            (m.route.as_deref(), m.daily_dose),
+            (Some("IV"), Some(160.0))
+        );
+        // A word that only starts with the short form is not a drug.
+        assert!(meds("furore on the ward, spirometry booked").is_empty());
+    }
+
+    #[test]
+    fn an_amount_over_24_hours_is_a_daily_dose() {
+        // CSCI doses are written as the amount per 24 h (domain reference 09-discharge-gdmt.md
+        // 9.3; subcutaneous furosemide infusions occur in palliative care).
+        for text in [
+            "Furosemide 40mg SC via syringe driver over 24h",
+            "furosemide CSCI 40 mg/24h",
+            "furosemide 40mg/24hrs SC",
+            "furosemide 40 mg SC over 24 hours",
+            "furosemide 40 mg per 24 h via CSCI",
+        ] {
+            let m = one(text);
+            assert_eq!(m.dose, Some(40.0), "{text}");
+            assert_eq!(m.unit.as_deref(), Some("mg"), "{text}");
+            assert_eq!(m.daily_dose, Some(40.0), "{text}");
+            assert_eq!(m.frequency.as_deref(), Some("over 24 h"), "{text}");
+            assert_eq!(m.route.as_deref(), Some("SC"), "{text}");
+        }
+        // A duration in days is not a rate.
+        let m = one("furosemide 40 mg od for 3 days");
+        assert_eq!(m.frequency.as_deref(), Some("od"));
+    }
+
+    #[test]
     fn a_monitoring_plan_is_not_a_dosing_frequency() {
         // "daily weights", "daily U&E" say how often to check (common practice, no source).
         for text in [
@@ -1650,6 +1745,8 @@ mod tests {
             ("furosemide 40 mg twice daily", "bd", Some(2.0)),
             ("furosemide 40 mg once daily", "od", Some(1.0)),
             ("furosemide 40 mg q12h", "q12h", Some(2.0)),
+            // "x1", one dose (US usage; common practice, no source).
+            ("furosemide 80 mg IV x1", "once", None),
         ];
         for (text, freq, per_day) in cases {
             let m = one(text);
