@@ -195,6 +195,7 @@ pub fn medications(text: &str, sections: &[Section]) -> Vec<Medication> {
         }
         mentions.push(Mention {
             hit: *hit,
+            clause_start,
             head_start,
             tail_end: clause_end,
             joined_by: join,
@@ -273,6 +274,8 @@ enum Join {
 #[derive(Debug, Clone)]
 struct Mention {
     hit: Hit,
+    /// Where the mention's clause starts (before any comma the head stops at).
+    clause_start: usize,
     head_start: usize,
     tail_end: usize,
     joined_by: Join,
@@ -602,6 +605,8 @@ fn frequency_of(word: &str) -> Option<(&'static str, Option<f64>)> {
         "stat" => ("stat", None),
         "once" => ("once", None),
         "prn" => ("prn", None),
+        // "x1": one dose, US usage ("80 mg IV x1"; common practice, no source).
+        "x1" | "×1" => ("once", None),
         "weekly" => ("weekly", Some(1.0 / 7.0)),
         "qod" => ("alternate days", Some(0.5)),
         "mon/wed/fri" | "m/w/f" => ("mon/wed/fri", Some(3.0 / 7.0)),
@@ -646,6 +651,34 @@ const FREQUENCY_PHRASES: &[(&str, &str, Option<f64>)] = &[
     ("one off", "once", None),
 ];
 
+/// The word that says a dose runs over 24 hours ("40 mg SC via syringe driver over 24h",
+/// "60 mg/24h", "60 mg per 24 hours"): a continuous subcutaneous or intravenous infusion whose
+/// daily dose is the amount written (domain reference 09-discharge-gdmt.md 9.3, CSCI).
+fn over_a_day(seg: &[Word]) -> Option<usize> {
+    let day = |w: &str| {
+        matches!(
+            w.trim_end_matches(['.', ',']),
+            "24h" | "24hr" | "24hrs" | "24hours" | "24-hours" | "24-hour"
+        )
+    };
+    seg.iter().enumerate().find_map(|(i, w)| {
+        let t = w.text.as_str();
+        if t.contains("/24") && !t.starts_with("q") {
+            return Some(i);
+        }
+        if !matches!(t, "over" | "per" | "/" | "every") {
+            return None;
+        }
+        let next = seg.get(i + 1)?.text.as_str();
+        if day(next) {
+            return Some(i + 1);
+        }
+        let unit = seg.get(i + 2).map(|w| w.text.trim_end_matches(['.', ',']));
+        (next == "24" && matches!(unit, Some("h" | "hr" | "hrs" | "hours" | "hour")))
+            .then_some(i + 2)
+    })
+}
+
 /// Dose-time words of a split dose ("80 mg mane + 40 mg midday").
 fn time_word(word: &str) -> Option<&'static str> {
     Some(match word.trim_end_matches('.') {
@@ -687,6 +720,8 @@ fn unit_of(word: &str) -> Option<&'static str> {
         "tab" | "tabs" | "tablet" | "tablets" => "{tablet}",
         "cap" | "caps" | "capsule" | "capsules" => "{capsule}",
         "mg/h" | "mg/hr" | "mg/hour" | "mg/hrs" => "mg/h",
+        // An amount over a day by syringe driver ("60 mg/24h"); see [`over_a_day`].
+        "mg/24h" | "mg/24hr" | "mg/24hrs" | "mg/24hours" | "mg/24" => "mg",
         "mcg/h" | "ug/h" | "micrograms/h" | "microgram/h" => "ug/h",
         _ => return None,
     })
@@ -932,10 +967,87 @@ const HYPOTHETICAL: &[&str] = &[
     "option",
 ];
 
+/// Conditions that can reach back over a comma to the action before them ("restart
+/// furosemide 20 mg od tomorrow, if Cr improving"). Other hypothetical words ("aim",
+/// "consider", "may") after a break open a clause of their own.
+const BACKWARD_CONDITIONS: &[&str] = &["if", "unless", "when", "provided", "providing"];
+
+/// Words that open a condition over the rest of the clause when they come before a comma:
+/// "If K <3.0 on recheck, d/w reg re holding diuretics" (ConText forward triggers, Harkema et
+/// al. 2009).
+const FORWARD_CONDITIONS: &[&str] = &["if", "unless", "should", "provided", "providing"];
+
+/// Words that add nothing to an action between a break and a condition ("then only if").
+const FILLERS: &[&str] = &["only", "and", "then", "just", "even", "but", "or", "so"];
+
+/// Where a condition in the tail stops reaching the mention: the byte offset in `tail` of
+/// the last break (` then `, ` - `, `,`, ` and `, ` as `, `because`) before the first
+/// hypothetical word, when another action stands between that break and the condition
+/// ("80 mg mane for 3 days then back to 40 mg if weight <79 kg", "20 mg od - he takes an
+/// extra 20 mg if his weight goes up", "x1 given 03:10, repeat in 2h if UOP <200"), or when
+/// the condition has a consequent of its own ("40 mg od, if weight up increase to 80 mg").
+/// `None` when the condition governs the whole mention ("restart 20 mg od tomorrow if Cr
+/// improving") or there is none. The scope of a condition runs from its trigger, as in
+/// ConText (Harkema et al. 2009), not over the whole mention.
+fn condition_cut(tail: &str, ws: &[Word]) -> Option<usize> {
+    let bare = |w: &Word| w.text.trim_end_matches(['.', ',']).to_string();
+    let h = ws
+        .iter()
+        .position(|w| HYPOTHETICAL.contains(&bare(w).as_str()))?;
+    let h_start = ws[h].start;
+    let lower = tail.to_ascii_lowercase();
+    let before = &lower[..h_start];
+    let mut cut: Option<usize> = None;
+    for brk in [
+        " then ",
+        " - ",
+        " – ",
+        " — ",
+        ",",
+        " and ",
+        " as ",
+        " because ",
+        " since ",
+        " but ",
+        " so ",
+        " whilst ",
+        " while ",
+    ] {
+        if let Some(p) = before.rfind(brk) {
+            if cut.is_none_or(|c| p > c) {
+                cut = Some(p);
+            }
+        }
+    }
+    let cut = cut?;
+    // Nothing of the dose before the break: the mention's own words start after it.
+    if ws.iter().all(|w| w.start >= cut) {
+        return None;
+    }
+    let between: Vec<&Word> = ws
+        .iter()
+        .filter(|w| w.start > cut && w.start < h_start)
+        .filter(|w| !FILLERS.contains(&bare(w).as_str()))
+        .collect();
+    let after = &ws[h + 1..];
+    let consequent = after.iter().enumerate().any(|(i, w)| {
+        change_of(&w.text, after.get(i + 1).map(|n| n.text.as_str())).is_some()
+            || split_dose_word(&w.text).is_some_and(|(_, _, u)| u.is_some())
+    });
+    let backward = BACKWARD_CONDITIONS.contains(&bare(&ws[h]).as_str());
+    (!between.is_empty() || consequent || !backward).then_some(cut)
+}
+
 fn parse_mention(text: &str, m: &Mention) -> Parsed {
     let head_raw = &text[m.head_start..m.hit.start];
     let tail_start = m.hit.end;
-    let tail_end = m.tail_end.max(tail_start);
+    let mut tail_end = m.tail_end.max(tail_start);
+    {
+        let (main, _) = split_brackets(&text[tail_start..tail_end]);
+        if let Some(cut) = condition_cut(&main, &words(&main)) {
+            tail_end = text.floor_char_boundary(tail_start + cut).max(tail_start);
+        }
+    }
     let tail_raw = &text[tail_start..tail_end];
     let (head_main, _) = split_brackets(head_raw);
     let (tail_main, tail_inner) = split_brackets(tail_raw);
@@ -1002,9 +1114,17 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
             }
         }
     }
-    if head
-        .iter()
-        .any(|w| HYPOTHETICAL.contains(&w.text.trim_end_matches(['.', ','])))
+    // A condition before a comma of the same clause reaches the first mention after it
+    // ("If K <3.0 on recheck, d/w reg re holding diuretics").
+    let opened_before = m.joined_by == Join::None
+        && m.clause_start < m.head_start
+        && words(&split_brackets(&text[m.clause_start..m.head_start]).0)
+            .iter()
+            .any(|w| FORWARD_CONDITIONS.contains(&w.text.trim_end_matches(['.', ','])));
+    if opened_before
+        || head
+            .iter()
+            .any(|w| HYPOTHETICAL.contains(&w.text.trim_end_matches(['.', ','])))
     {
         p.assertion = Assertion::Hypothetical;
         p.assertion_from = From::Head;
@@ -1219,6 +1339,19 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
             p.unit = d0.unit;
             apply_frequency(&mut p, freq.as_ref());
         }
+        if p.frequency.is_none() && p.unit == Some("mg") {
+            if let Some(wi) = over_a_day(seg) {
+                let d = p.dose.unwrap_or(0.0);
+                p.frequency = Some("over 24 h".into());
+                p.per_day = Some(1.0);
+                p.daily_dose = p.dose;
+                p.note = Some(format!(
+                    "{} mg over 24 h by continuous infusion",
+                    fmt_num(d)
+                ));
+                mark(&mut p, &seg[wi]);
+            }
+        }
         if infusion && p.frequency.is_none() {
             p.frequency = Some("continuous".into());
         }
@@ -1348,6 +1481,16 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
             p.change = Some(MedChange::Switched);
             p.change_from = From::Other;
         }
+    }
+    // "consider digoxin": with no other verb in the head, a start is what is considered
+    // ("consider digoxin if HR remains >110": "remains" is the heart rate's, not the drug's).
+    if (p.change.is_none() || p.change_from != From::Head)
+        && head
+            .iter()
+            .any(|w| matches!(w.text.as_str(), "consider" | "considering"))
+    {
+        p.change = Some(MedChange::Started);
+        p.change_from = From::Head;
     }
     // Bracketed words decide only when nothing else did: "(increased from 20 mg)".
     if p.change.is_none() {
@@ -1596,6 +1739,56 @@ mod tests {
     }
 
     #[test]
+    fn shortened_generic_names() {
+        // Typed short forms of generic names (common practice, no source; "IV furo 80 bd" is
+        // a handover form in the domain reference 03-note-language.md 3.10). Brands never.
+        for (text, drug) in [
+            ("IV furo 80 bd", "furosemide"),
+            ("furo 40 IV od", "furosemide"),
+            ("Furo 40mg PO om", "furosemide"),
+            ("spiro 25 od", "spironolactone"),
+            ("HCTZ 25 mg daily", "hydrochlorothiazide"),
+            ("sac/val 24/26 mg bd", "sacubitril/valsartan"),
+            ("TMP-SMX DS 1 tab BID", "co-trimoxazole"),
+            ("trimethoprim 200mg BD", "trimethoprim"),
+        ] {
+            let m = one(text);
+            assert_eq!(m.drug, drug, "{text}");
+            assert!(m.dose.is_some(), "{text}");
+        }
+        let m = one("IV furo 80 bd");
+        assert_eq!(
+            (m.route.as_deref(), m.daily_dose),
+            (Some("IV"), Some(160.0))
+        );
+        // A word that only starts with the short form is not a drug.
+        assert!(meds("furore on the ward, spirometry booked").is_empty());
+    }
+
+    #[test]
+    fn an_amount_over_24_hours_is_a_daily_dose() {
+        // CSCI doses are written as the amount per 24 h (domain reference 09-discharge-gdmt.md
+        // 9.3; subcutaneous furosemide infusions occur in palliative care).
+        for text in [
+            "Furosemide 40mg SC via syringe driver over 24h",
+            "furosemide CSCI 40 mg/24h",
+            "furosemide 40mg/24hrs SC",
+            "furosemide 40 mg SC over 24 hours",
+            "furosemide 40 mg per 24 h via CSCI",
+        ] {
+            let m = one(text);
+            assert_eq!(m.dose, Some(40.0), "{text}");
+            assert_eq!(m.unit.as_deref(), Some("mg"), "{text}");
+            assert_eq!(m.daily_dose, Some(40.0), "{text}");
+            assert_eq!(m.frequency.as_deref(), Some("over 24 h"), "{text}");
+            assert_eq!(m.route.as_deref(), Some("SC"), "{text}");
+        }
+        // A duration in days is not a rate.
+        let m = one("furosemide 40 mg od for 3 days");
+        assert_eq!(m.frequency.as_deref(), Some("od"));
+    }
+
+    #[test]
     fn a_monitoring_plan_is_not_a_dosing_frequency() {
         // "daily weights", "daily U&E" say how often to check (common practice, no source).
         for text in [
@@ -1650,6 +1843,8 @@ mod tests {
             ("furosemide 40 mg twice daily", "bd", Some(2.0)),
             ("furosemide 40 mg once daily", "od", Some(1.0)),
             ("furosemide 40 mg q12h", "q12h", Some(2.0)),
+            // "x1", one dose (US usage; common practice, no source).
+            ("furosemide 80 mg IV x1", "once", None),
         ];
         for (text, freq, per_day) in cases {
             let m = one(text);
@@ -1878,6 +2073,85 @@ mod tests {
             Some(MedChange::Continued)
         );
         assert_eq!(one("no change to furosemide").assertion, Assertion::Present);
+    }
+
+    #[test]
+    fn a_condition_reaches_back_only_to_the_action_before_it() {
+        // The scope of a condition starts at its trigger and stops at a clause break (ConText,
+        // Harkema et al. 2009); the phrasings are UK, US and Australian forms (common practice,
+        // no source).
+        let definite: &[(&str, f64, Option<&str>)] = &[
+            (
+                "Increase furosemide to 80 mg mane for 3 days then back to 40 mg if weight back <79 kg",
+                80.0,
+                Some("mane"),
+            ),
+            (
+                "Furosemide 20 mg once daily - he takes an extra 20 mg if his weight goes up by more than 1.5 kg",
+                20.0,
+                Some("od"),
+            ),
+            (
+                "furosemide 80 mg IV x1 given 03:10, repeat in 2h if UOP <200 mL",
+                80.0,
+                Some("once"),
+            ),
+            (
+                "I have started furosemide 20 mg od pending your review and stopped amlodipine as it may be contributing to her ankle swelling",
+                20.0,
+                Some("od"),
+            ),
+            (
+                "furosemide 40 mg PO daily, increase to 40 mg BID if wt up 3 lb",
+                40.0,
+                Some("daily"),
+            ),
+            (
+                "frusemide 40mg mane, extra 40mg midday if wt >2kg above dry wt",
+                40.0,
+                Some("mane"),
+            ),
+            (
+                "furosemide 40 mg od, if weight up by 2 kg increase to 80 mg",
+                40.0,
+                Some("od"),
+            ),
+            ("IV furosemide 80 mg bd, aim negative 1-1.5 L/day", 80.0, Some("bd")),
+        ];
+        for (text, dose, freq) in definite {
+            let m = one(text);
+            assert_eq!(m.assertion, Assertion::Present, "{text}");
+            assert_eq!(
+                (m.dose, m.frequency.as_deref()),
+                (Some(*dose), *freq),
+                "{text}"
+            );
+        }
+        assert_eq!(
+            one(definite[0].0).change,
+            Some(MedChange::Increased),
+            "the 80 mg is the increase"
+        );
+        assert_eq!(one(definite[3].0).change, Some(MedChange::Started));
+        // A condition on the whole mention, before or after it.
+        for text in [
+            "Restart oral furosemide 20 mg od from tomorrow if Cr improving",
+            "restart furosemide 20 mg od tomorrow, if Cr improving",
+            "furosemide 40 mg PO BID if tolerating PO",
+            "If K <3.0 on recheck, d/w reg re holding diuretics",
+            "Should K rise above 6, stop spironolactone",
+            "consider digoxin if HR remains >110",
+        ] {
+            assert_eq!(one(text).assertion, Assertion::Hypothetical, "{text}");
+        }
+        // A considered drug is a considered start, not a continued one.
+        for text in [
+            "consider digoxin if HR remains >110",
+            "Consider spironolactone once K is known",
+            "considering dapagliflozin at follow-up",
+        ] {
+            assert_eq!(one(text).change, Some(MedChange::Started), "{text}");
+        }
     }
 
     #[test]

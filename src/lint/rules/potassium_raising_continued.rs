@@ -18,8 +18,8 @@ pub const RULE: Rule = Rule {
 const DOC: &str = "\
 ## What
 Fires when the most recent potassium in the note is above the threshold (default greater than
-5.5 mmol/L) and a potassium-raising drug (an MRA, ACE inhibitor, ARB, ARNI or a potassium
-supplement) is mentioned as current or continued with no change or comment: not stopped, held,
+5.5 mmol/L) and a potassium-raising drug (an MRA, ACE inhibitor, ARB, ARNI, a potassium
+supplement, trimethoprim or co-trimoxazole, amiloride or triamterene) is mentioned as current or continued with no change or comment: not stopped, held,
 reduced or switched anywhere in the note. One diagnostic per drug. The threshold is set in
 `tidemark.toml` (`[lint.thresholds] potassium-high`).
 
@@ -42,18 +42,26 @@ K 5.9. Spironolactone held, ramipril reduced to 2.5 mg. Recheck U&E tomorrow.
 ## Sources
 Threshold: the ESC heart failure guidelines' practical advice on MRAs, to halve the dose
 above 5.5 mmol/L and stop above 6.0 mmol/L (from memory; tune locally). That these drug
-classes raise potassium: common practice, no source.
+classes raise potassium: common practice, no source. Trimethoprim (alone or in
+co-trimoxazole), amiloride and triamterene: hyperkalaemia is listed among their side effects
+and interactions in the BNF (from memory).
 ";
 
-fn raises_potassium(c: DrugClass) -> bool {
-    matches!(
-        c,
-        DrugClass::Mra
-            | DrugClass::AceInhibitor
-            | DrugClass::Arb
-            | DrugClass::Arni
-            | DrugClass::PotassiumSupplement
-    )
+/// Drugs outside the classes below that raise potassium (BNF side effects and interactions,
+/// from memory): trimethoprim acts on the distal tubule as amiloride does.
+const POTASSIUM_RAISING_DRUGS: &[&str] =
+    &["trimethoprim", "co-trimoxazole", "amiloride", "triamterene"];
+
+fn raises_potassium(c: DrugClass, drug: &str) -> bool {
+    POTASSIUM_RAISING_DRUGS.contains(&drug)
+        || matches!(
+            c,
+            DrugClass::Mra
+                | DrugClass::AceInhibitor
+                | DrugClass::Arb
+                | DrugClass::Arni
+                | DrugClass::PotassiumSupplement
+        )
 }
 
 fn class_label(c: DrugClass) -> &'static str {
@@ -68,10 +76,21 @@ fn class_label(c: DrugClass) -> &'static str {
 }
 
 fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
-    let Some(k) = patient_values(cx.ex, MeasureConcept::Potassium)
-        .last()
-        .copied()
-    else {
+    // The latest potassium: the last one written that no time word places earlier
+    // (`K+ 6.1 mmol/L (5.4 two days ago)` is 6.1), else the last one written.
+    let ks = patient_values(cx.ex, MeasureConcept::Potassium);
+    let earlier = |m: &&crate::model::Measurement| {
+        matches!(
+            m.time_ref,
+            Some(
+                crate::model::TimeRef::Previous
+                    | crate::model::TimeRef::Baseline
+                    | crate::model::TimeRef::Admission
+                    | crate::model::TimeRef::Yesterday
+            )
+        )
+    };
+    let Some(k) = ks.iter().rev().find(|m| !earlier(m)).or(ks.last()).copied() else {
         return;
     };
     let Some(q) = k.normalized else { return };
@@ -82,7 +101,7 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
     }
     let mut seen: Vec<&str> = Vec::new();
     for m in &cx.ex.medications {
-        if !raises_potassium(m.class) || m.assertion != Assertion::Present {
+        if !raises_potassium(m.class, &m.drug) || m.assertion != Assertion::Present {
             continue;
         }
         if !matches!(m.change, None | Some(MedChange::Continued)) {
@@ -118,6 +137,34 @@ fn check(cx: &Ctx<'_>, out: &mut Vec<Diagnostic>) {
 mod tests {
     use super::*;
     use crate::lint::testkit::Note;
+
+    #[test]
+    fn an_earlier_value_written_after_does_not_hide_the_latest() {
+        // Common practice, no source: "K+ 6.1 (5.4 two days ago)" is a potassium of 6.1
+        // now; the threshold (5.5 mmol/L by default) is the rule's own configuration.
+        let n = Note::new("K+ 6.1 mmol/L (5.4 two days ago). Continue spironolactone 25 mg od.\n")
+            .meas(
+                MeasureConcept::Potassium,
+                6.1,
+                Some("mmol/L"),
+                "K+ 6.1 mmol/L",
+            )
+            .meas_with(
+                MeasureConcept::Potassium,
+                5.4,
+                Some("mmol/L"),
+                false,
+                "5.4",
+                |m| m.time_ref = Some(crate::model::TimeRef::Previous),
+            )
+            .med(
+                "spironolactone",
+                crate::model::DrugClass::Mra,
+                Some(MedChange::Continued),
+                "spironolactone 25 mg od",
+            );
+        assert_eq!(n.check(&RULE).len(), 1);
+    }
 
     const NOTE: &str = "K 5.9. Meds: spironolactone 25 mg od, ramipril 5 mg od, bisoprolol.\n";
 
@@ -162,6 +209,24 @@ mod tests {
         let n = Note::new(NOTE)
             .meas(MeasureConcept::Potassium, 5.5, Some("mmol/L"), "K 5.9")
             .med("spironolactone", DrugClass::Mra, None, "spironolactone");
+        assert!(n.check(&RULE).is_empty());
+    }
+
+    #[test]
+    fn trimethoprim_and_potassium_sparing_diuretics_raise_potassium() {
+        // Hyperkalaemia is a listed side effect of trimethoprim (alone or as co-trimoxazole),
+        // amiloride and triamterene in the BNF (from memory); furosemide lowers potassium.
+        for drug in ["trimethoprim", "co-trimoxazole", "amiloride"] {
+            let n = Note::new(&format!("K 6.1. Meds: {drug} 200 mg bd.\n"))
+                .meas(MeasureConcept::Potassium, 6.1, Some("mmol/L"), "K 6.1")
+                .med(drug, DrugClass::Other, None, drug);
+            let d = n.check(&RULE);
+            assert_eq!(d.len(), 1, "{drug}: {d:?}");
+            assert!(d[0].message.contains(drug), "{}", d[0].message);
+        }
+        let n = Note::new("K 6.1. Meds: furosemide 40 mg od.\n")
+            .meas(MeasureConcept::Potassium, 6.1, Some("mmol/L"), "K 6.1")
+            .med("furosemide", DrugClass::LoopDiuretic, None, "furosemide");
         assert!(n.check(&RULE).is_empty());
     }
 }
