@@ -591,3 +591,60 @@ Weight 146.2 lbs (baseline 145). Admission weight 68 kg.\n";
     let labels: Vec<&str> = w.points.iter().map(|p| p.label.as_str()).collect();
     assert_eq!(labels, ["baseline", "adm", "01/12"]);
 }
+
+#[test]
+fn a_switch_that_names_the_new_regime_keeps_the_drug_on() {
+    // Common practice, no source: "IV -> PO" and "PO ... (switched from IV)" give the
+    // regime now in force; "switched from IV furosemide" alone names only the old one.
+    for (line, want) in [
+        (
+            "Plan: furosemide 40mg IV BD -> 40mg PO BD today",
+            "PO furosemide 40 mg bd",
+        ),
+        (
+            "Plan: PO furosemide 40mg om (switched from IV 26/11)",
+            "PO furosemide 40 mg om",
+        ),
+    ] {
+        let text = format!("Bed 4   MRN 0000404   28/11/2026 09:00\n{line}\n");
+        let n = common::NoteBuilder::new("x.txt", &text).build();
+        let s = build_sheet(&[n], &Matcher::default());
+        let regime: Vec<_> = s.patients[0]
+            .diuretics
+            .regime
+            .iter()
+            .map(|m| m.summary.as_str())
+            .collect();
+        assert_eq!(regime, [want], "{line:?}");
+    }
+}
+
+#[test]
+fn a_switch_to_another_drug_takes_the_first_off_unless_only_planned() {
+    // Common practice, no source.
+    let text = "Bed 4   MRN 0000404   28/11/2026 09:00\n\
+Plan: ramipril 2.5 mg bd -> switch to sacubitril/valsartan 24/26 mg bd\n";
+    let n = common::NoteBuilder::new("x.txt", text).build();
+    let s = build_sheet(&[n], &Matcher::default());
+    let acei = s.patients[0]
+        .gdmt
+        .iter()
+        .find(|g| g.group == "acei_arb_arni")
+        .expect("group");
+    assert!(
+        acei.drugs.iter().all(|d| !d.summary.contains("ramipril")),
+        "{:?}",
+        acei.drugs
+    );
+    let text = "Bed 4   MRN 0000404   28/11/2026 09:00\n\
+Plan: furosemide 80 mg IV BID -> transition to torsemide 40 mg PO daily tomorrow if Cr stable\n";
+    let n = common::NoteBuilder::new("x.txt", text).build();
+    let s = build_sheet(&[n], &Matcher::default());
+    let regime: Vec<_> = s.patients[0]
+        .diuretics
+        .regime
+        .iter()
+        .map(|m| m.summary.as_str())
+        .collect();
+    assert_eq!(regime, ["IV furosemide 80 mg bid"]);
+}

@@ -1143,8 +1143,31 @@ fn medications(notes: &[NoteRef], today: Option<&str>) -> (Diuretics, Vec<GdmtLi
             if is_today && diuretic && m.change.is_some_and(|c| c != MedChange::Continued) {
                 changes_today.push(line.clone());
             }
+            // `furosemide 40mg IV BD -> 40mg PO BD`, `PO furosemide 40mg om (switched from
+            // IV)`: a switch written with the regime it leaves in force (a dose and a
+            // frequency, not introduced by "from") keeps the drug on, at that regime.
+            // `switched from IV furosemide 40 mg bd` names the regime left behind.
+            // A switch to another drug on the same line (`ramipril 2.5 mg bd -> switch to
+            // sacubitril/valsartan`) takes this one off, unless that drug is only planned
+            // (`-> transition to torsemide 40 mg PO daily tomorrow if Cr stable`).
+            let line_end = n.text[m.span.end.min(n.text.len())..]
+                .find('\n')
+                .map_or(n.text.len(), |p| m.span.end + p);
+            let to_other_drug = n.analysis.extraction.medications.iter().any(|o| {
+                o.span.start >= m.span.end
+                    && o.span.start < line_end
+                    && o.drug != m.drug
+                    && o.assertion == Assertion::Present
+            });
+            let switched_to = m.change == Some(MedChange::Switched)
+                && m.dose.is_some()
+                && m.frequency.is_some()
+                && !to_other_drug
+                && !m.text.to_ascii_lowercase().contains("from");
             match m.change {
-                Some(MedChange::Stopped) | Some(MedChange::Held) | Some(MedChange::Switched) => {
+                Some(MedChange::Stopped) | Some(MedChange::Held) | Some(MedChange::Switched)
+                    if !switched_to =>
+                {
                     let status = match m.change {
                         Some(MedChange::Held) => GdmtStatus::Held,
                         _ => GdmtStatus::Stopped,
