@@ -117,7 +117,7 @@ const CUES: &[(DocKind, &str, u32)] = &[
     (Progress, "telephone follow-up", 7),
     (Progress, "phone review", 7),
     (Progress, "virtual review", 7),
-    (Progress, "video review", 7),
+    (Progress, "camera review", 7),
     (Progress, "home visit", 6),
     (Progress, "registrar review", 7),
     (Nursing, "rn", 3),
