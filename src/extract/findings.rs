@@ -20,30 +20,16 @@ use super::numbers::cached as re;
 
 /// The text of the same line within `before` bytes before and `after` bytes after a range,
 /// on character boundaries.
-fn window(doc: &Doc, start: usize, end: usize, before: usize, after: usize) -> (usize, usize) {
-    let line = doc.line_at(start);
-    let mut a = start.saturating_sub(before).max(line.start);
-    while !doc.text.is_char_boundary(a) {
-        a += 1;
-    }
-    let line_end = doc.line_at(end.saturating_sub(1).max(start)).end;
-    let mut b = (end + after).min(line_end).max(end);
-    while !doc.text.is_char_boundary(b) {
-        b -= 1;
-    }
-    (a, b)
-}
-
 /// The words after a finding up to the next clause break.
 fn clause_after<'t>(doc: &Doc<'t>, end: usize, max: usize) -> &'t str {
-    let (_, b) = window(doc, end, end, 0, max);
+    let (_, b) = doc.window(end, end, 0, max);
     let s = &doc.text[end..b];
     let cut = s.find(['.', ';', ',', '(']).unwrap_or(s.len());
     &s[..cut]
 }
 
 fn clause_before<'t>(doc: &Doc<'t>, start: usize, max: usize) -> &'t str {
-    let (a, _) = window(doc, start, start, max, 0);
+    let (a, _) = doc.window(start, start, max, 0);
     let s = &doc.text[a..start];
     let cut = s.rfind(['.', ';', ',', ')']).map(|i| i + 1).unwrap_or(0);
     &s[cut..]
@@ -74,11 +60,7 @@ fn drug_change_reason(doc: &Doc, start: usize) -> bool {
         &REASON,
         r"(?i)(?-u:\b)(?:stopped|held|withheld|omitted|discontinued|d/c'?d|reduced|decreased|switched|changed|not\s+restarted|intolerant|intolerance)(?-u:\b)[^()\n.;]{0,24}(?:\([^()\n]*|(?-u:\b)(?:due\s+to|because\s+of|owing\s+to|for)\s+[^()\n.;]*)$",
     );
-    let line = doc.line_at(start);
-    let mut from = start.saturating_sub(64).max(line.start);
-    while !doc.text.is_char_boundary(from) {
-        from += 1;
-    }
+    let (from, _) = doc.window(start, start, 64, 0);
     reason.is_match(&doc.text[from..start])
 }
 
@@ -134,7 +116,7 @@ fn edema_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
         }
     }
     // Non-pitting swelling is not graded (03 §3.3).
-    let (a, _) = window(doc, start, end, 12, 0);
+    let (a, _) = doc.window(start, end, 12, 0);
     let non_pitting = doc.text[a..end]
         .to_ascii_lowercase()
         .contains("non-pitting");
@@ -176,7 +158,7 @@ fn crackles_detail(doc: &Doc, start: usize, end: usize, d: &mut FindingDetail) {
         &LEVEL,
         r"(?i)(?-u:\b)(bibasal|bibasilar|basal|bases|mid[- ]?zones?|midzones?|throughout|widespread|diffuse|apices|apex|upper zones?|half way up|halfway up)(?-u:\b)",
     );
-    let (a, b) = window(doc, start, end, 30, 50);
+    let (a, b) = doc.window(start, end, 30, 50);
     if let Some(c) = level.captures(&doc.text[a..b]) {
         let l = c[1].to_ascii_lowercase();
         d.level = Some(
@@ -202,7 +184,7 @@ fn trend_of(doc: &Doc, end: usize) -> Option<String> {
         &COUGH,
         r"(?i)(?-u:\b)(not\s+|n't\s+|never\s+|without\s+)?clear(?:ed|s|ing)?\s+(?:on|with|after|by)\s+(?:a\s+)?cough",
     );
-    let (_, b) = window(doc, end, end, 0, 48);
+    let (_, b) = doc.window(end, end, 0, 48);
     let sentence = &doc.text[end..b];
     let sentence = &sentence[..sentence.find(['.', ';', '\n']).unwrap_or(sentence.len())];
     if let Some(c) = cough.captures(sentence) {
@@ -258,7 +240,7 @@ fn pillow_count(doc: &Doc, start: usize) -> (Option<u32>, bool) {
 
 /// Decide what "added sounds" refers to from the words before it on the line.
 fn added_concept(doc: &Doc, start: usize) -> FindingConcept {
-    let (a, _) = window(doc, start, start, 48, 0);
+    let (a, _) = doc.window(start, start, 48, 0);
     let before = doc.text[a..start].to_ascii_lowercase();
     let chest = [
         "chest",
@@ -435,7 +417,7 @@ pub fn findings(doc: &Doc, out: &mut Output) {
                     &HABIT,
                     r"(?i)(?-u:\b)(?:habit|habitual|habitually|always|usual|usually|for comfort|for years|long[- ]?standing|(?:his|her|their) back|(?:his|her|their) neck|reflux|heartburn|out of preference|preference)(?-u:\b)",
                 );
-                let (a, b) = window(doc, start, end, 40, 50);
+                let (a, b) = doc.window(start, end, 40, 50);
                 let after = &doc.text[end..b];
                 let after = &after[..after.find(['.', ';']).unwrap_or(after.len())];
                 let before = &doc.text[a..start];
@@ -463,7 +445,7 @@ pub fn findings(doc: &Doc, out: &mut Output) {
             FindingConcept::Orthopnea if detail.pillows.is_none() => {
                 static P: OnceLock<Regex> = OnceLock::new();
                 let p = re(&P, r"(?i)(\d|one|two|three|four|five)[- ]pillows?");
-                let (a, b) = window(doc, start, end, 20, 30);
+                let (a, b) = doc.window(start, end, 20, 30);
                 if let Some(c) = p.captures(&doc.text[a..b]) {
                     detail.pillows = parse_number(&c[1]).map(|v| v as u32);
                 }
@@ -663,11 +645,7 @@ fn is_high_flow_oxygen(doc: &Doc, start: usize, end: usize) -> bool {
     if !doc.text[start..end].eq_ignore_ascii_case("hf") {
         return false;
     }
-    let line = doc.line_at(start);
-    let mut lim = (end + 24).min(line.end).max(end);
-    while !doc.text.is_char_boundary(lim) {
-        lim -= 1;
-    }
+    let (_, lim) = doc.window(start, end, 0, 24);
     let after = doc.text[end..lim].to_ascii_lowercase();
     let after = after.trim_start_matches([' ', '\t', ':', '@']);
     let after = after.strip_prefix("at ").unwrap_or(after).trim_start();
@@ -724,15 +702,7 @@ fn on_imaging(doc: &Doc, start: usize, end: usize) -> bool {
         "pocus",
         "echo",
     ];
-    let line = doc.line_at(start);
-    let mut lim = (end + 40).min(line.end).max(end);
-    while !doc.text.is_char_boundary(lim) {
-        lim -= 1;
-    }
-    let mut from = start.saturating_sub(32).max(line.start);
-    while !doc.text.is_char_boundary(from) {
-        from += 1;
-    }
+    let (from, lim) = doc.window(start, end, 32, 40);
     // Within the term's own sentence.
     let after = doc.text[end..lim].to_ascii_lowercase();
     let after = after.split(['.', ';']).next().unwrap_or("");
@@ -770,15 +740,7 @@ fn refuted(doc: &Doc, start: usize, end: usize) -> bool {
         &BEFORE,
         r#"(?i)(?:incorrectly|erroneously|wrongly|mistakenly|previously\s+mis)\w*\s+(?:\w+\s+){0,3}(?:as\s+)?["'“‘(]?\s*$"#,
     );
-    let line = doc.line_at(start);
-    let mut lim = (end + 48).min(line.end).max(end);
-    while !doc.text.is_char_boundary(lim) {
-        lim -= 1;
-    }
-    let mut from = start.saturating_sub(48).max(line.start);
-    while !doc.text.is_char_boundary(from) {
-        from += 1;
-    }
+    let (from, lim) = doc.window(start, end, 48, 48);
     let before = &doc.text[from..start];
     let before = &before[before.rfind(['.', ';']).map_or(0, |i| i + 1)..];
     after_re.is_match(&doc.text[end..lim]) || before_re.is_match(before)

@@ -492,11 +492,7 @@ fn own_sentence(window: &str) -> &str {
 /// K 3.4 today` is a measurement); a comparator right after the label does (common
 /// practice, no source).
 fn is_goal_order(doc: &Doc, start: usize, end: usize) -> bool {
-    let line = doc.line_at(start);
-    let mut lim = (end + 16).min(line.end).max(end);
-    while !doc.text.is_char_boundary(lim) {
-        lim -= 1;
-    }
+    let (from, lim) = doc.window(start, end, 48, 16);
     let after = doc.text[end..lim]
         .trim_start_matches([' ', '\t', ':', '='])
         .to_ascii_lowercase();
@@ -506,10 +502,6 @@ fn is_goal_order(doc: &Doc, start: usize, end: usize) -> bool {
             .any(|w| after.starts_with(w));
     if !compared {
         return false;
-    }
-    let mut from = start.saturating_sub(48).max(line.start);
-    while !doc.text.is_char_boundary(from) {
-        from += 1;
     }
     const VERBS: &[&str] = &[
         "titrat",
@@ -596,11 +588,7 @@ fn written_time(doc: &Doc, r: &Reading, start: usize) -> (Option<TimeRef>, Optio
     let mut date = r.date.clone();
     let at = r.end.min(doc.text.len());
     if doc.text.is_char_boundary(at) {
-        let line = doc.line_at(at);
-        let mut lim = (at + 96).min(line.end).max(at);
-        while !doc.text.is_char_boundary(lim) {
-            lim -= 1;
-        }
+        let (_, lim) = doc.window(at, at, 0, 96);
         if let Some(p) = time_after(&doc.text[at..lim]) {
             let note_day = doc
                 .note_date
@@ -654,11 +642,7 @@ fn written_time(doc: &Doc, r: &Reading, start: usize) -> (Option<TimeRef>, Optio
         }
     }
     if time_ref.is_none() && date.is_none() {
-        let line = doc.line_at(start);
-        let mut from = start.saturating_sub(32).max(line.start);
-        while !doc.text.is_char_boundary(from) {
-            from += 1;
-        }
+        let (from, _) = doc.window(start, start, 32, 0);
         if let Some(before) = doc.text.get(from..start) {
             time_ref = time_before(before);
         }
@@ -680,10 +664,7 @@ fn list_time(doc: &Doc, start: usize) -> Option<TimeRef> {
         r"(?i)^\s*(?:[-*•]\s*)?(on\s+arrival|on\s+admission|at\s+admission|at\s+presentation|on\s+presentation|admission\s+obs|admission\s+vitals|pre-?admission|at\s+baseline|at\s+discharge|on\s+discharge|discharge\s+obs|discharge\s+vitals)\b[:,]?\s",
     );
     let line = doc.line_at(start);
-    let mut from = start.saturating_sub(120).max(line.start);
-    while !doc.text.is_char_boundary(from) {
-        from += 1;
-    }
+    let (from, _) = doc.window(start, start, 120, 0);
     let before = doc.text.get(from..start)?;
     // The label's own sentence.
     let sentence = before
@@ -878,11 +859,7 @@ fn unit_fits(concept: MeasureConcept, r: &Reading) -> bool {
 /// after a label (`UR 8812034`, an Australian unit-record number) is an identifier, not a
 /// value. Common practice, no source.
 fn part_of_other_name(doc: &Doc, label: Label, start: usize, end: usize) -> bool {
-    let line = doc.line_at(start);
-    let mut from = start.saturating_sub(24).max(line.start);
-    while !doc.text.is_char_boundary(from) {
-        from += 1;
-    }
+    let (from, lim) = doc.window(start, end, 24, 24);
     let before = doc.text[from..start].to_ascii_lowercase();
     let last_word = before
         .trim_end_matches([' ', '\t', '-', ':'])
@@ -899,10 +876,6 @@ fn part_of_other_name(doc: &Doc, label: Label, start: usize, end: usize) -> bool
     }
     if matches!(label, Label::TempWeak) && ANALYTE.contains(&last_word) {
         return true;
-    }
-    let mut lim = (end + 24).min(line.end).max(end);
-    while !doc.text.is_char_boundary(lim) {
-        lim -= 1;
     }
     let after = doc.text[end..lim].trim_start_matches([' ', '\t', ':', '#', '-']);
     let digits = after.bytes().take_while(u8::is_ascii_digit).count();

@@ -57,6 +57,22 @@ impl Doc<'_> {
         self.index.line_range(line)
     }
 
+    /// Up to `before` bytes before `start` and `after` bytes after `end`, kept within the
+    /// line of the span and on character boundaries.
+    pub fn window(&self, start: usize, end: usize, before: usize, after: usize) -> (usize, usize) {
+        let line = self.line_at(start);
+        let mut a = start.saturating_sub(before).max(line.start);
+        while !self.text.is_char_boundary(a) {
+            a += 1;
+        }
+        let line_end = self.line_at(end.saturating_sub(1).max(start)).end;
+        let mut b = (end + after).min(line_end).max(end);
+        while !self.text.is_char_boundary(b) {
+            b -= 1;
+        }
+        (a, b)
+    }
+
     pub fn section_of(&self, offset: usize) -> Option<usize> {
         sections::section_at(self.sections, offset)
     }

@@ -203,6 +203,14 @@ fn cue_places(lower: &str, title: std::ops::Range<usize>, header_end: usize) -> 
     best
 }
 
+/// Where the header block (the first [`HEADER_LINES`] lines) of `text` ends.
+fn header_end(text: &str) -> usize {
+    text.match_indices('\n')
+        .nth(HEADER_LINES - 1)
+        .map(|(i, _)| i)
+        .unwrap_or(text.len())
+}
+
 /// Whether a letter is a referral asking for an opinion rather than the specialist's own
 /// assessment: "Referral to ..." or "re: referral" in the header block, or a request to see
 /// the patient ("I would be grateful if you could see", "please see and advise"). The wording
@@ -226,11 +234,7 @@ pub fn is_referral(text: &str) -> bool {
         "thank you for seeing",
     ];
     let lower = text.to_lowercase();
-    let header_end = lower
-        .match_indices('\n')
-        .nth(HEADER_LINES - 1)
-        .map(|(i, _)| i)
-        .unwrap_or(lower.len());
+    let header_end = header_end(&lower);
     let header = &lower[..header_end];
     HEADER.iter().any(|p| has_phrase(header, p)) || ASKS.iter().any(|p| has_phrase(&lower, p))
 }
@@ -238,11 +242,7 @@ pub fn is_referral(text: &str) -> bool {
 /// Decide the kind of a note from its header block, its wording and its sections.
 pub fn detect(text: &str, ex: &Extraction) -> DocKind {
     let lower = text.to_lowercase();
-    let header_end = lower
-        .match_indices('\n')
-        .nth(HEADER_LINES - 1)
-        .map(|(i, _)| i)
-        .unwrap_or(lower.len());
+    let header_end = header_end(&lower);
     let header = &lower[..header_end];
     let title = header
         .split('\n')
