@@ -591,6 +591,10 @@ pub struct Medication {
     pub daily_dose: Option<f64>,
     #[serde(skip_serializing_if = "Option::is_none")]
     pub change: Option<MedChange>,
+    /// When the change is written for a later day ("from tomorrow", "from Monday"), that
+    /// day as written; the regime in force today is then the one before the change.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub starts: Option<String>,
     pub assertion: Assertion,
     /// How a dose was read, when that is not obvious (split doses, infusion rates, pairs).
     #[serde(skip_serializing_if = "Option::is_none")]

@@ -648,3 +648,42 @@ Plan: furosemide 80 mg IV BID -> transition to torsemide 40 mg PO daily tomorrow
         .collect();
     assert_eq!(regime, ["IV furosemide 80 mg bid"]);
 }
+
+#[test]
+fn a_change_for_a_later_day_leaves_todays_regime() {
+    // Common practice, no source: "switch A to B from tomorrow" keeps A as today's regime
+    // and lists B as tomorrow's change; an earlier day's scheduled change is in force.
+    let text = "Bed 4   MRN 0000404   28/11/2026 09:00\n\
+Plan: Switch IV furosemide 40mg bd to PO furosemide 40mg od from tomorrow\n";
+    let n = common::NoteBuilder::new("x.txt", text).build();
+    let s = build_sheet(&[n], &Matcher::default());
+    let d = &s.patients[0].diuretics;
+    let regime: Vec<_> = d.regime.iter().map(|m| m.summary.as_str()).collect();
+    assert_eq!(regime, ["IV furosemide 40 mg bd"]);
+    let later: Vec<_> = d
+        .changes_today
+        .iter()
+        .map(|m| (m.summary.as_str(), m.starts.as_deref()))
+        .collect();
+    assert_eq!(later, [("PO furosemide 40 mg od", Some("tomorrow"))]);
+
+    let day1 = common::NoteBuilder::new(
+        "a.txt",
+        "Bed 4   MRN 0000404   27/11/2026 09:00\n\
+Plan: Switch IV furosemide 40mg bd to PO furosemide 40mg od from tomorrow\n",
+    )
+    .build();
+    let day2 = common::NoteBuilder::new(
+        "b.txt",
+        "Bed 4   MRN 0000404   28/11/2026 09:00\nWeight 80.1 kg\n",
+    )
+    .build();
+    let s = build_sheet(&[day1, day2], &Matcher::default());
+    let regime: Vec<_> = s.patients[0]
+        .diuretics
+        .regime
+        .iter()
+        .map(|m| m.summary.as_str())
+        .collect();
+    assert_eq!(regime, ["PO furosemide 40 mg od"]);
+}

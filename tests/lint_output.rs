@@ -155,6 +155,7 @@ fn model() -> (Extraction, Picture) {
         daily_dose: Some(25.0),
         note: None,
         change: None,
+        starts: None,
         assertion: Assertion::Present,
         text: "spironolactone 25 mg od".into(),
         span: span(NOTE, "spironolactone 25 mg od"),

@@ -174,7 +174,13 @@ pub fn medications(text: &str, sections: &[Section]) -> Vec<Medication> {
         if let Some(prev) = i.checked_sub(1).map(|p| &hits[p]) {
             if prev.end > clause_start && prev.end <= hit.start {
                 let between = &text[prev.end..hit.start];
-                match last_separator(between) {
+                let separator = last_separator(between).or_else(|| {
+                    let prev_head = mentions
+                        .last()
+                        .map_or("", |m| &text[m.head_start..prev.start]);
+                    switch_to(prev_head, between)
+                });
+                match separator {
                     Some((s, e, kind)) => {
                         head_start = prev.end + e;
                         join = kind;
@@ -241,6 +247,7 @@ pub fn medications(text: &str, sections: &[Section]) -> Vec<Medication> {
             per_day: p.per_day,
             daily_dose: p.daily_dose,
             change: p.change,
+            starts: p.starts.clone(),
             assertion,
             note: p.note.clone(),
             text: text[start..end].to_string(),
@@ -300,6 +307,8 @@ struct Parsed {
     daily_dose: Option<f64>,
     change: Option<MedChange>,
     change_from: From,
+    /// The later day a change is written for ("from tomorrow").
+    starts: Option<String>,
     assertion: Assertion,
     assertion_from: From,
     note: Option<String>,
@@ -486,6 +495,122 @@ fn last_separator(between: &str) -> Option<(usize, usize, Join)> {
         }
     }
     best
+}
+
+/// `switch A to B`, `change A 40 mg bd to B`: with a switch verb before the first drug
+/// (`prev_head`), the last ` to ` between the two names replaces A by B as an arrow does.
+/// Without one, ` to ` joins nothing ("add spironolactone to furosemide").
+fn switch_to(prev_head: &str, between: &str) -> Option<(usize, usize, Join)> {
+    let switching = words(prev_head).iter().any(|w| {
+        matches!(
+            w.text.trim_end_matches(['.', ',']),
+            "switch"
+                | "switched"
+                | "switching"
+                | "change"
+                | "changed"
+                | "convert"
+                | "converted"
+                | "swap"
+                | "swapped"
+                | "transition"
+                | "step"
+        )
+    });
+    if !switching {
+        return None;
+    }
+    let lower = between.to_ascii_lowercase();
+    let p = lower.rfind(" to ")?;
+    Some((p, p + 4, Join::Arrow))
+}
+
+/// A later day a change is written for: `from tomorrow`, `starting Monday`, `tomorrow`,
+/// `from 12/11`, `next week`, `in 2 days` (common practice, no source). Read in the
+/// mention's own words only, so "recheck U&E tomorrow" after a comma does not schedule the
+/// drug before it.
+fn future_start(ws: &[Word]) -> Option<String> {
+    let bare = |w: &Word| w.text.trim_end_matches(['.', ',', ':']).to_string();
+    let weekday = |w: &str| -> Option<String> {
+        Some(
+            match w {
+                "mon" | "monday" => "Monday",
+                "tue" | "tues" | "tuesday" => "Tuesday",
+                "wed" | "weds" | "wednesday" => "Wednesday",
+                "thu" | "thur" | "thurs" | "thursday" => "Thursday",
+                "fri" | "friday" => "Friday",
+                "sat" | "saturday" => "Saturday",
+                "sun" | "sunday" => "Sunday",
+                _ => return None,
+            }
+            .to_string(),
+        )
+    };
+    let is_date = |w: &str| {
+        let parts: Vec<&str> = w.split(['/', '.']).collect();
+        (2..=3).contains(&parts.len())
+            && parts
+                .iter()
+                .all(|p| !p.is_empty() && p.len() <= 4 && p.bytes().all(|b| b.is_ascii_digit()))
+    };
+    for (i, w) in ws.iter().enumerate() {
+        let t = bare(w);
+        if matches!(
+            t.as_str(),
+            "tomorrow" | "tmrw" | "tmw" | "tomorrow's" | "2moro"
+        ) {
+            return Some("tomorrow".into());
+        }
+        let next = ws.get(i + 1).map(bare);
+        let after = ws.get(i + 2).map(bare);
+        let from_word = matches!(
+            t.as_str(),
+            "from" | "starting" | "commencing" | "wef" | "w.e.f" | "on" | "beginning"
+        );
+        if t == "next" && next.as_deref().is_some_and(|n| matches!(n, "week" | "wk")) {
+            return Some("next week".into());
+        }
+        if t == "in"
+            && next
+                .as_deref()
+                .is_some_and(|n| n.parse::<u32>().is_ok_and(|v| v < 60))
+            && after
+                .as_deref()
+                .is_some_and(|a| matches!(a, "days" | "day" | "weeks" | "week"))
+        {
+            return Some(format!(
+                "in {} {}",
+                next.unwrap_or_default(),
+                after.unwrap_or_default()
+            ));
+        }
+        if from_word {
+            if let Some(n) = next.as_deref() {
+                if let Some(d) = weekday(n) {
+                    return Some(d);
+                }
+                if is_date(n) && t != "on" {
+                    return Some(n.to_string());
+                }
+            }
+        }
+    }
+    None
+}
+
+/// The words of a tail that belong to the mention itself: up to the first comma, dash or
+/// monitoring noun after its dose (`40 mg od, U&E tomorrow`).
+fn own_part(ws: &[Word], text: &str) -> usize {
+    for (i, w) in ws.iter().enumerate() {
+        if MONITORING.contains(&w.text.trim_end_matches(['.', ','])) {
+            return i;
+        }
+        let after = text.get(w.end..).unwrap_or("");
+        if after.starts_with(',') || after.starts_with(" - ") || after.starts_with(" then ") {
+            return i + 1;
+        }
+    }
+    ws.len()
 }
 
 /// Blank out bracketed text (keeping byte offsets) and return it separately.
@@ -1063,6 +1188,7 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
         daily_dose: None,
         change: None,
         change_from: From::Other,
+        starts: None,
         assertion: Assertion::Present,
         assertion_from: From::Other,
         note: None,
@@ -1492,6 +1618,8 @@ fn parse_mention(text: &str, m: &Mention) -> Parsed {
         p.change = Some(MedChange::Started);
         p.change_from = From::Head;
     }
+    // A change written for a later day, in the head or the mention's own words.
+    p.starts = future_start(&tail[..own_part(&tail, &tail_main)]).or_else(|| future_start(&head));
     // Bracketed words decide only when nothing else did: "(increased from 20 mg)".
     if p.change.is_none() {
         let inner = words(&tail_inner);
@@ -1565,8 +1693,25 @@ fn split_doses<'a>(seg: &[Word], ds: &'a [Dose]) -> Vec<&'a Dose> {
     parts
 }
 
-/// Copy a shared verb or negation along a list ("hold X and Y", "X, Y and Z continue").
+/// Copy a shared verb or negation along a list ("hold X and Y", "X, Y and Z continue"), and
+/// a later day along a list or a switch ("switch A to B from tomorrow": A stays today).
 fn propagate(mentions: &[Mention], parsed: &mut [Parsed]) {
+    for i in 1..parsed.len() {
+        if !matches!(mentions[i].joined_by, Join::List | Join::Arrow) {
+            continue;
+        }
+        if parsed[i].starts.is_none() {
+            parsed[i].starts = parsed[i - 1].starts.clone();
+        }
+    }
+    for i in (1..parsed.len()).rev() {
+        if !matches!(mentions[i].joined_by, Join::List | Join::Arrow) {
+            continue;
+        }
+        if parsed[i - 1].starts.is_none() {
+            parsed[i - 1].starts = parsed[i].starts.clone();
+        }
+    }
     for i in 1..parsed.len() {
         if mentions[i].joined_by != Join::List {
             continue;
@@ -1665,6 +1810,54 @@ mod tests {
         let m = meds(text);
         assert_eq!(m.len(), 1, "{text}: {m:#?}");
         m.into_iter().next().expect("one")
+    }
+
+    #[test]
+    fn a_change_for_a_later_day_carries_its_day() {
+        // Common practice, no source: a day after the change, or before it, schedules it;
+        // a day in a monitoring plan after a comma does not.
+        for (text, want) in [
+            (
+                "Start spironolactone 12.5 mg od from Monday",
+                Some("Monday"),
+            ),
+            ("Restart furosemide 20 mg od tomorrow", Some("tomorrow")),
+            ("From tomorrow: furosemide 40 mg PO od", Some("tomorrow")),
+            (
+                "Reduce furosemide to 40 mg od starting 02/12",
+                Some("02/12"),
+            ),
+            (
+                "Increase bisoprolol to 5 mg od next week",
+                Some("next week"),
+            ),
+            ("Continue bisoprolol 2.5 mg od, recheck U&E tomorrow", None),
+            ("Furosemide 40 mg IV bd, review tomorrow", None),
+            ("Furosemide 40 mg IV bd", None),
+        ] {
+            assert_eq!(one(text).starts.as_deref(), want, "{text}");
+        }
+    }
+
+    #[test]
+    fn switch_a_to_b_is_a_replacement() {
+        // Common practice, no source: "switch A to B" replaces A by B as an arrow does, and
+        // the later day reaches both; "add A to B" joins nothing.
+        let m = meds("Switch IV furosemide 40mg bd to PO furosemide 40mg od from tomorrow");
+        assert_eq!(m.len(), 2, "{m:#?}");
+        assert_eq!(m[0].change, Some(MedChange::Switched));
+        assert_eq!(m[0].route.as_deref(), Some("IV"));
+        assert_eq!(m[1].route.as_deref(), Some("PO"));
+        assert_eq!(m[1].daily_dose, Some(40.0));
+        assert!(
+            m.iter().all(|x| x.starts.as_deref() == Some("tomorrow")),
+            "{m:#?}"
+        );
+        let m = meds("Change ramipril 2.5 mg bd to sacubitril/valsartan 24/26 mg bd");
+        assert_eq!(m[1].change, Some(MedChange::Started), "{m:#?}");
+        let m = meds("Add spironolactone 25 mg od to furosemide");
+        assert_eq!(m[0].change, Some(MedChange::Started));
+        assert_ne!(m[1].change, Some(MedChange::Started), "{m:#?}");
     }
 
     #[test]

@@ -157,6 +157,7 @@ mod tests {
                 dose * per_day
             }),
             change: None,
+            starts: None,
             assertion: Assertion::Present,
             note: None,
             text: String::new(),

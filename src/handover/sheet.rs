@@ -194,6 +194,9 @@ pub struct MedLine {
     pub assertion: Assertion,
     pub daily_dose: Option<f64>,
     pub unit: Option<String>,
+    /// The later day a change is written for ("tomorrow"); today's regime is unchanged.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub starts: Option<String>,
     pub source: Src,
 }
 
@@ -1062,6 +1065,17 @@ pub fn med_summary(m: &Medication) -> String {
     parts.join(" ")
 }
 
+/// A regime in force today: one that a switch written for a later day will replace is
+/// shown without that change.
+fn today_line(m: &Medication, note: usize) -> MedLine {
+    let mut line = med_line(m, note);
+    if line.starts.is_some() && line.change == Some(MedChange::Switched) {
+        line.change = None;
+        line.starts = None;
+    }
+    line
+}
+
 fn med_line(m: &Medication, note: usize) -> MedLine {
     // A class mention ("no MRA due to K") is shown as written.
     let summary = if m.drug == class_name(m.class) {
@@ -1077,6 +1091,7 @@ fn med_line(m: &Medication, note: usize) -> MedLine {
         assertion: m.assertion,
         daily_dose: m.daily_dose,
         unit: m.unit.clone(),
+        starts: m.starts.clone(),
         source: Src { note, span: m.span },
     }
 }
@@ -1140,8 +1155,32 @@ fn medications(notes: &[NoteRef], today: Option<&str>) -> (Diuretics, Vec<GdmtLi
                 }
                 continue;
             }
-            if is_today && diuretic && m.change.is_some_and(|c| c != MedChange::Continued) {
+            let leaving_later = m.starts.is_some() && m.change == Some(MedChange::Switched);
+            if is_today
+                && diuretic
+                && !leaving_later
+                && m.change.is_some_and(|c| c != MedChange::Continued)
+            {
                 changes_today.push(line.clone());
+            }
+            // A change written for a later day in the latest day's notes leaves today's
+            // regime as it is: `switch A to B from tomorrow` keeps A on today (A is written
+            // with its dose, so it is also today's regime); B and any other scheduled change
+            // wait. On an earlier day the change has since come into force.
+            let scheduled = is_today && m.starts.is_some();
+            if scheduled {
+                if m.change == Some(MedChange::Switched) && m.dose.is_some() {
+                    match current.iter().position(|(c, _)| c.drug == m.drug) {
+                        Some(p) => current[p] = (m, i),
+                        None => current.push((m, i)),
+                    }
+                    events.push((m.class, GdmtStatus::On, line));
+                } else if !current.iter().any(|(c, _)| c.drug == m.drug)
+                    && matches!(m.change, Some(MedChange::Stopped | MedChange::Held))
+                {
+                    events.push((m.class, GdmtStatus::On, line));
+                }
+                continue;
             }
             // `furosemide 40mg IV BD -> 40mg PO BD`, `PO furosemide 40mg om (switched from
             // IV)`: a switch written with the regime it leaves in force (a dose and a
@@ -1197,7 +1236,7 @@ fn medications(notes: &[NoteRef], today: Option<&str>) -> (Diuretics, Vec<GdmtLi
                 DrugClass::LoopDiuretic | DrugClass::ThiazideDiuretic
             )
         })
-        .map(|(m, i)| med_line(m, *i))
+        .map(|(m, i)| today_line(m, *i))
         .collect();
     let loops: Vec<(&Medication, Option<usize>)> =
         current.iter().map(|(m, i)| (*m, Some(*i))).collect();
@@ -1215,7 +1254,7 @@ fn medications(notes: &[NoteRef], today: Option<&str>) -> (Diuretics, Vec<GdmtLi
         let on: Vec<MedLine> = current
             .iter()
             .filter(|(m, _)| classes.contains(&m.class))
-            .map(|(m, i)| med_line(m, *i))
+            .map(|(m, i)| today_line(m, *i))
             .collect();
         let (status, drugs) = if !on.is_empty() {
             (GdmtStatus::On, on)

@@ -278,7 +278,13 @@ pub fn rows(p: &PatientSheet) -> Vec<Row> {
         ));
     }
     for m in &d.changes_today {
-        diur.push(format!("today: {}", med_text(m)));
+        match &m.starts {
+            Some(day) if day.starts_with("in ") || day == "next week" => {
+                diur.push(format!("{day}: {}", med_text(m)))
+            }
+            Some(day) => diur.push(format!("from {day}: {}", med_text(m))),
+            None => diur.push(format!("today: {}", med_text(m))),
+        }
     }
     out.push(row("Diuretic", diur));
     let mut gdmt = Vec::new();

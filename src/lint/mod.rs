@@ -476,6 +476,7 @@ mod prop {
                     drug: "d".into(), class: classes[c], dose: None, unit: None, route: None,
                     frequency: None, per_day: None, daily_dose: None, note: None,
                     change: changed.then_some(MedChange::Continued),
+                    starts: None,
                     assertion: Assertion::Present, text: "d".into(), span: span(start, 1),
                     section: Some(start % 5),
                 });

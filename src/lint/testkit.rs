@@ -154,6 +154,7 @@ impl Note {
             daily_dose: None,
             note: None,
             change,
+            starts: None,
             assertion: Assertion::Present,
             text: text.to_string(),
             span,
