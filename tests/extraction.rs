@@ -994,3 +994,16 @@ fn day_labels_before_weights_are_not_weights() {
     v.sort_by(f64::total_cmp);
     assert_eq!(v, vec![79.9, 80.4, 82.0]);
 }
+
+#[test]
+fn pound_sign_after_every_weight_of_a_list() {
+    // `#` after a number is the pound (common practice, no source); 1 lb = 0.45359237 kg
+    // (NIST SP 811): 181 lb = 82.100 kg, 182 lb = 82.554 kg.
+    let v = values(
+        "Home visit 11/16/2026\nWeight: 187# today. Wt log: 11/12 181#, 11/13 182#, 11/14 184#.\n",
+        MeasureConcept::Weight,
+    );
+    assert!(v.contains(&82.1), "{v:?}");
+    assert!(v.contains(&82.554), "{v:?}");
+    assert!(v.iter().all(|w| *w < 90.0), "{v:?}");
+}
