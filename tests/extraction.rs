@@ -6,6 +6,7 @@ use tidemark::config::ExtractOptions;
 use tidemark::extract::extract;
 use tidemark::model::{
     Assertion, Experiencer, Extraction, FindingConcept, MeasureConcept, StatementKind, Temporality,
+    TimeRef,
 };
 
 fn ex(text: &str) -> Extraction {
@@ -968,4 +969,41 @@ fn a_unit_written_once_covers_its_chain() {
         failures.push(format!("unitless chain: {missing} unit-missing, want 3"));
     }
     assert!(failures.is_empty(), "{}", failures.join("\n"));
+}
+
+#[test]
+fn day_labels_before_weights_are_not_weights() {
+    // A day label (`D5`, `Day 4`, `POD2`) names the day of the number after it; day 1 is
+    // the admission day (common practice, no source).
+    let e = ex("Wt: 118.3 kg   (D5 119.6, D4 121.0, D1 125.5)\n");
+    let ws: Vec<(f64, Option<TimeRef>)> = e
+        .measurements
+        .iter()
+        .filter(|m| m.concept == MeasureConcept::Weight)
+        .map(|m| (m.value, m.time_ref))
+        .collect();
+    assert_eq!(ws.len(), 4, "{ws:?}");
+    assert!(ws.iter().all(|(v, _)| *v > 100.0), "{ws:?}");
+    assert!(ws.contains(&(125.5, Some(TimeRef::Admission))), "{ws:?}");
+    assert!(ws.contains(&(121.0, Some(TimeRef::Previous))), "{ws:?}");
+    // The same in a series with the unit written once.
+    let mut v = values(
+        "Weights: Day 1 82.0, Day 3 80.4, POD4 79.9 kg\n",
+        MeasureConcept::Weight,
+    );
+    v.sort_by(f64::total_cmp);
+    assert_eq!(v, vec![79.9, 80.4, 82.0]);
+}
+
+#[test]
+fn pound_sign_after_every_weight_of_a_list() {
+    // `#` after a number is the pound (common practice, no source); 1 lb = 0.45359237 kg
+    // (NIST SP 811): 181 lb = 82.100 kg, 182 lb = 82.554 kg.
+    let v = values(
+        "Home visit 11/16/2026\nWeight: 187# today. Wt log: 11/12 181#, 11/13 182#, 11/14 184#.\n",
+        MeasureConcept::Weight,
+    );
+    assert!(v.contains(&82.1), "{v:?}");
+    assert!(v.contains(&82.554), "{v:?}");
+    assert!(v.iter().all(|w| *w < 90.0), "{v:?}");
 }

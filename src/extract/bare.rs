@@ -242,7 +242,7 @@ fn dated_weight_lists(doc: &Doc, out: &mut Output) {
     static ITEM: OnceLock<Regex> = OnceLock::new();
     let item = re(
         &ITEM,
-        r"(?i)(?-u:\b)(\d{1,2}[/.]\d{1,2}(?:[/.]\d{2,4})?)\s*[:\-–]?\s*(\d{2,3}(?:\.\d{1,2})?)(?-u:\b)(?:\s?(kgs?|lbs?))?",
+        r"(?i)(?-u:\b)(\d{1,2}[/.]\d{1,2}(?:[/.]\d{2,4})?)\s*[:\-–]?\s*(\d{2,3}(?:\.\d{1,2})?)(?-u:\b)(?:\s?(kgs?|lbs?|pounds|#))?",
     );
     for line_no in 0..doc.index.line_count() {
         let range = doc.index.line_range(line_no);
@@ -268,7 +268,11 @@ fn dated_weight_lists(doc: &Doc, out: &mut Output) {
             .iter()
             .find_map(|c| c.get(3).map(|u| u.as_str().to_string()))
             .or_else(|| {
-                if lower.contains("lb") {
+                // `187#`: the pound sign after a number (common practice, no source).
+                let pound_sign = lower
+                    .match_indices('#')
+                    .any(|(i, _)| lower[..i].ends_with(|c: char| c.is_ascii_digit()));
+                if lower.contains("lb") || pound_sign {
                     Some("lb".to_string())
                 } else if lower.contains("kg") {
                     Some("kg".to_string())

@@ -61,6 +61,8 @@ pub struct Reading {
     /// The reading is a target or goal (`target ~82`), not a measurement.
     pub target: bool,
     pub date: Option<String>,
+    /// The day number of a day label before the value (`D5 119.6`).
+    pub day: Option<u32>,
 }
 
 /// Run `rule` on the text from `start` to the end of its line. When the rest of the line
@@ -264,6 +266,7 @@ pub fn simple_readings(p: Pair<Rule>, base: usize) -> Vec<Reading> {
             }
         }
     }
+    order_by_day(&mut out);
     out
 }
 
@@ -288,11 +291,40 @@ fn is_bare_item(p: &Pair<Rule>) -> bool {
         })
 }
 
+/// The number of a day label (`D5`, `Day 4`, `POD 2`).
+fn day_number(label: &str) -> Option<u32> {
+    label
+        .trim_start_matches(|c: char| !c.is_ascii_digit())
+        .parse()
+        .ok()
+}
+
+/// When a day-labelled value was taken: day 1 is the admission day, a later day an
+/// earlier value than the note's own (common practice, no source).
+fn day_time_ref(day: Option<u32>) -> Option<TimeRef> {
+    match day? {
+        0 | 1 => Some(TimeRef::Admission),
+        _ => Some(TimeRef::Previous),
+    }
+}
+
+/// Day-labelled readings in the order of their day labels (`(D5 119.6, D4 121.0, D1
+/// 125.5)` is read D1, D4, D5), each keeping its place among the other readings.
+fn order_by_day(out: &mut [Reading]) {
+    let at: Vec<usize> = (0..out.len()).filter(|&i| out[i].day.is_some()).collect();
+    let mut labelled: Vec<Reading> = at.iter().map(|&i| out[i].clone()).collect();
+    labelled.sort_by_key(|r| r.day);
+    for (i, r) in at.into_iter().zip(labelled) {
+        out[i] = r;
+    }
+}
+
 /// An aside item or a chain link: `[target] [when] reading [unit] [when]`.
 fn item_reading(p: Pair<Rule>, base: usize) -> Option<Reading> {
     let mut r: Option<Reading> = None;
     let mut target = false;
     let mut when = None;
+    let mut day = None;
     let whole = p.as_str().to_ascii_lowercase();
     let whole_raw = p.as_str().to_string();
     let base_start = base + p.as_span().start();
@@ -345,6 +377,7 @@ fn item_reading(p: Pair<Rule>, base: usize) -> Option<Reading> {
             Rule::target_word => target = true,
             Rule::when | Rule::aside_word if r.is_none() => take_when(c.as_str(), &mut when),
             Rule::when | Rule::trailing_when => take_when(c.as_str(), &mut when),
+            Rule::day_label => day = day_number(c.as_str()),
             Rule::reading => r = reading_of(c, base),
             Rule::unit => {
                 if let Some(r) = r.as_mut() {
@@ -356,6 +389,10 @@ fn item_reading(p: Pair<Rule>, base: usize) -> Option<Reading> {
         }
     }
     let mut r = r?;
+    if day.is_some() {
+        r.day = day;
+        when = when.or(day_time_ref(day));
+    }
     // `(echo 11/2025)`, `(2024)`: a date or a year, not a value.
     let after_num = p_text_after(&whole_raw, r.end - base_start);
     if after_num.starts_with(['/', '.']) && after_num[1..].starts_with(|c: char| c.is_ascii_digit())
@@ -1080,8 +1117,10 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
             let mut r: Option<Reading> = None;
             let mut date = None;
             let mut when = None;
+            let mut day = None;
             for part in item.into_inner() {
                 match part.as_rule() {
+                    Rule::day_label => day = day_number(part.as_str()),
                     Rule::day_token => {
                         let abs = end + part.as_span().start();
                         date = doc.date_at(abs).map(|d| d.iso.clone());
@@ -1109,10 +1148,12 @@ pub fn weight(doc: &Doc, out: &mut Output, label: Label, start: usize, end: usiz
             }
             if let Some(mut r) = r {
                 r.date = date;
-                r.time_ref = when;
+                r.time_ref = when.or(day_time_ref(day));
+                r.day = day;
                 items.push(r);
             }
         }
+        order_by_day(&mut items);
         // A value without a unit takes the next unit written after it (`82.1, 81.6, 80.9 kg`;
         // `198, 196 lb, 89.6 kg` when a scale is swapped, 03 §3.7), else the last one before.
         carry_units(items.iter_mut().rev());
